@@ -1,0 +1,5 @@
+//! The `telltale` binary: parses the command line and hands over to the library.
+
+fn main() -> std::process::ExitCode {
+    telltale::cli::run()
+}
