@@ -7,6 +7,7 @@
 pub mod demo;
 pub mod encode;
 pub mod folds;
+pub mod join;
 pub mod kinds;
 pub mod load;
 pub mod prepare;
