@@ -292,5 +292,6 @@ pub struct AddedSourceEffect {
     pub auc_without: AucInterval,
     pub auc_with: AucInterval,
     pub difference: f64,
-    pub p_value: f64,
+    /// DeLong's test of the difference; `null` when the base has no features.
+    pub p_value: Option<f64>,
 }

@@ -2,6 +2,7 @@
 //! [`Report`] into bytes; they compute no statistics.
 
 pub mod contract;
+pub mod explanation;
 pub mod json;
 
 pub use contract::*;
