@@ -359,6 +359,14 @@ fn policy_errors_name_the_line() {
 }
 
 #[test]
+fn bare_toml_dates_are_accepted_and_checked() {
+    let bare = POLICY.replace("\"2027-06-30\"", "2027-06-30");
+    assert_eq!(policy(&bare).accept[0].expires, "2027-06-30");
+    let impossible = POLICY.replace("\"2027-06-30\"", "2027-02-30");
+    assert_eq!(error_line(&impossible).0, 10);
+}
+
+#[test]
 fn policy_accepts_the_example_layout() {
     let parsed = policy(POLICY);
     assert_eq!(parsed.thresholds.whole_set_auc_low, Some(0.70));
@@ -382,7 +390,7 @@ fn expiry_turns_acceptance_inactive_and_flips_the_gate() {
     assert_eq!(on_last_day.policy.as_ref(), Some(&outcome));
     assert!(!compare(&old_report(), &on_last_day, ALPHA).gate_failed());
 
-    let mut day_after = new_report();
+    let mut day_after = on_last_day.clone();
     let outcome = rules.apply(&mut day_after, "2027-07-01");
     assert_eq!(outcome.expired_acceptances, ["community/age"]);
     assert!(

@@ -15,14 +15,17 @@ use toml::Spanned;
 /// and, where the parser knows it, the line.
 #[derive(Debug, Error)]
 pub enum PolicyError {
+    /// The file could not be opened or is not UTF-8 text.
     #[error("{file}: cannot read policy: {reason}")]
     Unreadable { file: String, reason: String },
+    /// A syntax, key, type or value problem at a known line.
     #[error("{file}: line {line}: {reason}")]
     Invalid {
         file: String,
         line: usize,
         reason: String,
     },
+    /// A problem the parser could not place on a line.
     #[error("{file}: {reason}")]
     Malformed { file: String, reason: String },
 }
@@ -30,8 +33,11 @@ pub enum PolicyError {
 /// Threshold overrides; `None` keeps the report's own value.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct PolicyThresholds {
+    /// Overrides [`Thresholds::proxy_auc_low`].
     pub proxy_auc_low: Option<f64>,
+    /// Overrides [`Thresholds::review_auc_low`].
     pub review_auc_low: Option<f64>,
+    /// Overrides [`Thresholds::review_ami`].
     pub review_ami: Option<f64>,
     /// Fail when the whole-set AUC interval's lower bound reaches this.
     pub whole_set_auc_low: Option<f64>,
@@ -60,8 +66,11 @@ impl PolicyThresholds {
 pub struct AcceptRule {
     /// The protected attribute it applies to; every attribute when `None`.
     pub protected: Option<String>,
+    /// Feature name exactly as in the report.
     pub feature: String,
+    /// Why the feature is kept despite its flag.
     pub reason: String,
+    /// Who accepted it.
     pub reviewer: String,
     /// Last day the acceptance holds, `YYYY-MM-DD`.
     pub expires: String,
@@ -87,7 +96,9 @@ pub struct Policy {
     pub file: String,
     /// SHA-256 of the policy text, so a report names the exact policy it passed.
     pub sha256: String,
+    /// Threshold overrides from `[thresholds]`.
     pub thresholds: PolicyThresholds,
+    /// The `[[accept]]` entries in file order; a later match overrides an earlier one.
     pub accept: Vec<AcceptRule>,
 }
 
@@ -116,7 +127,8 @@ struct RawAccept {
     feature: String,
     reason: Spanned<String>,
     reviewer: Spanned<String>,
-    expires: Spanned<String>,
+    /// A quoted `"2027-06-30"` or a bare TOML date `2027-06-30`.
+    expires: Spanned<toml::Value>,
 }
 
 impl Policy {
@@ -157,6 +169,11 @@ impl Policy {
     /// failing items, stores the outcome in `report.policy` and returns it.
     /// The report passes when `failing` is empty.
     pub fn apply(&self, report: &mut Report, today: &str) -> PolicyOutcome {
+        debug_assert!(
+            is_valid_iso_date(today),
+            "today must be YYYY-MM-DD: {today}"
+        );
+        clear_acceptances(report);
         if self.thresholds.overrides_flags() {
             self.reflag(report);
         }
@@ -262,6 +279,15 @@ impl Policy {
             })
             .collect()
     }
+}
+
+/// Drops acceptances left by an earlier policy, so only this one counts.
+fn clear_acceptances(report: &mut Report) {
+    report
+        .results
+        .iter_mut()
+        .flat_map(|r| r.features.iter_mut())
+        .for_each(|f| f.accepted = None);
 }
 
 /// `protected/feature` of every accepted feature whose acceptance is (in)active.
@@ -377,16 +403,20 @@ impl Locator<'_> {
         Ok(value.into_inner())
     }
 
-    fn iso_date(&self, value: Spanned<String>) -> Result<String, PolicyError> {
-        if is_valid_iso_date(value.get_ref()) {
-            return Ok(value.into_inner());
+    fn iso_date(&self, value: Spanned<toml::Value>) -> Result<String, PolicyError> {
+        let text = match value.get_ref() {
+            toml::Value::String(text) => text.clone(),
+            toml::Value::Datetime(date) if date.time.is_none() && date.offset.is_none() => {
+                date.to_string()
+            }
+            other => other.to_string(),
+        };
+        if is_valid_iso_date(&text) {
+            return Ok(text);
         }
         Err(self.invalid(
             &value.span(),
-            format!(
-                "expires = \"{}\" is not a calendar date in YYYY-MM-DD form",
-                value.get_ref()
-            ),
+            format!("expires = {text} is not a calendar date in YYYY-MM-DD form"),
         ))
     }
 }
