@@ -165,7 +165,8 @@ fn hash_file(path: &Path) -> Result<String, InputError> {
     Ok(hex(&hasher.finalize()))
 }
 
-fn hex(bytes: &[u8]) -> String {
+/// Lower-case hexadecimal of a digest.
+pub(crate) fn hex(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()
 }
 

@@ -9,4 +9,4 @@ pub use diff::{
     AttributeStatus, AucChange, AucPoint, ContextItem, DEFAULT_ALPHA, FlagChange, ProtectedDiff,
     ReportDiff, ReviewError, compare, load_report, render_diff_markdown, render_diff_text,
 };
-pub use policy::{AcceptRule, Policy, PolicyError, PolicyThresholds, flag_for, today_utc};
+pub use policy::{AcceptRule, Policy, PolicyError, PolicyThresholds, today_utc};

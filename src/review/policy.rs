@@ -4,6 +4,7 @@
 //! thresholds and lists what still fails, which decides the exit status.
 
 use crate::report::{Acceptance, Flag, PolicyOutcome, Report, Thresholds};
+use crate::scan::flag_for;
 use serde::Deserialize;
 use sha2::{Digest, Sha256};
 use std::ops::Range;
@@ -304,22 +305,6 @@ fn acceptances(report: &Report, active: bool) -> Vec<String> {
         .collect()
 }
 
-/// The flag rule (DESIGN §3, thresholds common practice): `proxy` when the AUC
-/// interval's lower bound reaches `proxy_auc_low`; `review` when it reaches
-/// `review_auc_low` or AMI reaches `review_ami`; otherwise `clear`. A missing
-/// AUC judges on AMI alone. Shared by the scan and by policies so both agree.
-#[must_use]
-pub fn flag_for(auc_low: Option<f64>, ami: f64, t: &Thresholds) -> Flag {
-    let reaches = |limit: f64| auc_low.is_some_and(|low| low >= limit);
-    if reaches(t.proxy_auc_low) {
-        Flag::Proxy
-    } else if reaches(t.review_auc_low) || ami >= t.review_ami {
-        Flag::Review
-    } else {
-        Flag::Clear
-    }
-}
-
 /// Turns parse positions into line numbers of one policy text.
 struct Locator<'a> {
     text: &'a str,
@@ -422,10 +407,7 @@ impl Locator<'_> {
 }
 
 fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
+    crate::data::load::hex(&Sha256::digest(bytes))
 }
 
 /// `YYYY-MM-DD` naming a real day of the proleptic Gregorian calendar.
