@@ -32,7 +32,12 @@ impl Csv {
     fn read(path: &str) -> Self {
         let text = std::fs::read_to_string(path).unwrap();
         let mut lines = text.lines();
-        let header: Vec<String> = lines.next().unwrap().split(',').map(str::to_string).collect();
+        let header: Vec<String> = lines
+            .next()
+            .unwrap()
+            .split(',')
+            .map(str::to_string)
+            .collect();
         let mut columns = vec![Vec::new(); header.len()];
         for line in lines.filter(|l| !l.is_empty()) {
             let fields: Vec<&str> = line.split(',').collect();
@@ -74,7 +79,9 @@ fn distinct_codes(codes: &[u32]) -> usize {
 }
 
 fn float(value: &Value, key: &str) -> f64 {
-    value[key].as_f64().unwrap_or_else(|| panic!("missing {key}"))
+    value[key]
+        .as_f64()
+        .unwrap_or_else(|| panic!("missing {key}"))
 }
 
 fn assert_close(actual: f64, expected: f64, what: &str) {
@@ -86,9 +93,21 @@ fn assert_close(actual: f64, expected: f64, what: &str) {
 
 /// Compares MI, AMI and NMI (arithmetic) with a reference block.
 fn assert_information(summary: &InformationSummary, reference: &Value, what: &str) {
-    assert_close(summary.mi_nats, float(reference, "mi_nats"), &format!("{what} mi_nats"));
-    assert_close(summary.ami, float(reference, "ami_arithmetic"), &format!("{what} ami"));
-    assert_close(summary.nmi, float(reference, "nmi_arithmetic"), &format!("{what} nmi"));
+    assert_close(
+        summary.mi_nats,
+        float(reference, "mi_nats"),
+        &format!("{what} mi_nats"),
+    );
+    assert_close(
+        summary.ami,
+        float(reference, "ami_arithmetic"),
+        &format!("{what} ami"),
+    );
+    assert_close(
+        summary.nmi,
+        float(reference, "nmi_arithmetic"),
+        &format!("{what} nmi"),
+    );
 }
 
 /// Checks every feature of one reference file; returns how many were checked.
@@ -110,21 +129,33 @@ fn check_reference(file: &str) -> usize {
         let fields = csv.column(name);
         let numbers = as_numbers(fields);
         let expected_dtype = feature["dtype"].as_str().unwrap();
-        assert_eq!(numbers.is_some(), expected_dtype == "numeric", "{file} {name} dtype");
+        assert_eq!(
+            numbers.is_some(),
+            expected_dtype == "numeric",
+            "{file} {name} dtype"
+        );
         let (codes, levels) = match &numbers {
             Some(values) => {
                 let (codes, levels, edges, _) = quantile_bin_codes(values, BINS);
                 let expected_edges = feature["qcut_edges"].as_array().unwrap();
                 assert_eq!(edges.len(), expected_edges.len(), "{file} {name} edges");
                 for (edge, expected) in edges.iter().zip(expected_edges) {
-                    assert_close(*edge, expected.as_f64().unwrap(), &format!("{file} {name} edge"));
+                    assert_close(
+                        *edge,
+                        expected.as_f64().unwrap(),
+                        &format!("{file} {name} edge"),
+                    );
                 }
                 (codes, levels)
             }
             None => categorical_codes(fields),
         };
         let bins_used = feature["n_bins_used"].as_u64().unwrap() as usize;
-        assert_eq!(distinct_codes(&codes), bins_used, "{file} {name} n_bins_used");
+        assert_eq!(
+            distinct_codes(&codes),
+            bins_used,
+            "{file} {name} n_bins_used"
+        );
         let table = Contingency::from_codes(&codes, levels, &classes, n_classes);
         assert_information(&summarize(&table), feature, &format!("{file} {name}"));
         if let Some(values) = numbers {
@@ -158,7 +189,11 @@ fn check_numeric_extras(
     if alt.is_object() {
         let column = encode_integer_coded(name, values);
         let used = alt["n_bins_used"].as_u64().unwrap() as usize;
-        assert_eq!(distinct_codes(&column.codes), used, "{file} {name} alt n_bins_used");
+        assert_eq!(
+            distinct_codes(&column.codes),
+            used,
+            "{file} {name} alt n_bins_used"
+        );
         let table = Contingency::from_codes(&column.codes, column.n_levels, classes, n_classes);
         assert_information(&summarize(&table), alt, &format!("{file} {name} alt"));
     }

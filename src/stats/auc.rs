@@ -1,7 +1,7 @@
 //! Area under the ROC curve: Mann–Whitney point estimate, DeLong variance and
 //! interval, comparison of two AUCs, and the empirical ROC curve.
 
-use super::ranks::{sort_by_score, tie_groups};
+use super::ranks::{score_of_key, sort_by_score, sorted_keys, tie_groups};
 use super::special::{Z_975, two_sided_p_value};
 
 /// An AUC with its estimated variance and 95 % normal-theory interval.
@@ -69,45 +69,76 @@ impl AucComparison {
 }
 
 /// Scores collapsed into a rating table: one category per distinct score,
-/// ascending, with the class counts in each and every row's category.
+/// ascending, with the class counts in each.
+#[derive(Default)]
 pub(crate) struct ScoreTable {
-    /// The distinct scores, ascending.
-    pub scores: Vec<f64>,
+    /// Order keys of the distinct scores, ascending.
+    keys: Vec<u64>,
     pub negatives: Vec<u64>,
     pub positives: Vec<u64>,
-    /// Category index of every input row.
-    pub category_of_row: Vec<u32>,
 }
 
 impl ScoreTable {
-    /// Groups `scores` by tied value. `None` when the lengths differ.
+    /// Groups `scores` by tied value: each class's scores are sorted on
+    /// their own and the two runs merged. `None` when the lengths differ.
     pub fn new(scores: &[f64], positive: &[bool]) -> Option<Self> {
         if scores.len() != positive.len() {
             return None;
         }
-        let sorted = sort_by_score(scores);
-        let mut table = Self {
-            scores: Vec::new(),
-            negatives: Vec::new(),
-            positives: Vec::new(),
-            category_of_row: vec![0; scores.len()],
+        let of_class = |class: bool| {
+            sorted_keys(
+                scores
+                    .iter()
+                    .zip(positive)
+                    .filter(move |&(_, &p)| p == class)
+                    .map(|(s, _)| s),
+            )
         };
-        for (category, group) in tie_groups(&sorted).enumerate() {
-            let pos = group.iter().filter(|&&(_, r)| positive[r as usize]).count() as u64;
-            table.scores.push(scores[group[0].1 as usize]);
-            table.positives.push(pos);
-            table.negatives.push(group.len() as u64 - pos);
-            for &(_, row) in group {
-                table.category_of_row[row as usize] = category as u32;
-            }
+        let (pos_keys, neg_keys) = (of_class(true), of_class(false));
+        let mut table = Self::default();
+        let (mut i, mut j) = (0, 0);
+        loop {
+            let key = match (pos_keys.get(i), neg_keys.get(j)) {
+                (None, None) => break,
+                (Some(&a), Some(&b)) => a.min(b),
+                (Some(&a), None) => a,
+                (None, Some(&b)) => b,
+            };
+            let pos = run_length(&pos_keys[i..], key);
+            let neg = run_length(&neg_keys[j..], key);
+            table.push(key, neg, pos);
+            i += pos;
+            j += neg;
         }
         Some(table)
     }
+
+    /// Appends a category with `neg` negatives and `pos` positives.
+    fn push(&mut self, key: u64, neg: usize, pos: usize) {
+        self.keys.push(key);
+        self.negatives.push(neg as u64);
+        self.positives.push(pos as u64);
+    }
+
+    /// Number of categories (distinct scores).
+    pub fn len(&self) -> usize {
+        self.keys.len()
+    }
+
+    /// The score of `category`.
+    pub fn score(&self, category: usize) -> f64 {
+        score_of_key(self.keys[category])
+    }
+}
+
+/// How many leading keys of ascending `sorted` equal `key`.
+fn run_length(sorted: &[u64], key: u64) -> usize {
+    sorted.iter().take_while(|&&k| k == key).count()
 }
 
 /// Mann–Whitney AUC: the probability that a random positive scores above a
 /// random negative, ties counted ½ (Hanley & McNeil 1982, eq. 1; Mann &
-/// Whitney 1947). O(N) radix sort for large N, then a pass over tie groups.
+/// Whitney 1947). O(N log N): one sort per class, then a merge of tie groups.
 /// `None` when either class is empty or the lengths differ.
 #[must_use]
 pub fn auc_from_scores(scores: &[f64], positive: &[bool]) -> Option<f64> {
@@ -226,14 +257,23 @@ pub(crate) struct Influence {
 impl Influence {
     /// `None` when a class has fewer than two rows or the lengths differ.
     pub fn new(scores: &[f64], positive: &[bool]) -> Option<Self> {
-        let table = ScoreTable::new(scores, positive)?;
+        if scores.len() != positive.len() {
+            return None;
+        }
+        let sorted = sort_by_score(scores);
+        let mut table = ScoreTable::default();
+        for group in tie_groups(&sorted) {
+            let pos = group.iter().filter(|&&(_, r)| positive[r as usize]).count();
+            table.push(group[0].0, group.len() - pos, pos);
+        }
         let placements = Placements::new(&table.negatives, &table.positives)?;
-        let values = table
-            .category_of_row
-            .iter()
-            .zip(positive)
-            .map(|(&c, &p)| placements.influence(c as usize, p))
-            .collect();
+        let mut values = vec![0.0; scores.len()];
+        for (category, group) in tie_groups(&sorted).enumerate() {
+            for &(_, row) in group {
+                let row = row as usize;
+                values[row] = placements.influence(category, positive[row]);
+            }
+        }
         Some(Self {
             auc: placements.auc,
             values,
@@ -252,8 +292,8 @@ impl Influence {
 
 /// DeLong et al. (1988) variance and 95 % interval of the AUC of `scores`.
 ///
-/// V10/V01 structural components from mid-rank placements in O(N) after a
-/// radix sort (the fast algorithm of Sun & Xu 2014, IEEE SPL 21(11), §III);
+/// V10/V01 structural components from mid-rank placements in O(N) after an
+/// O(N log N) sort (the fast algorithm of Sun & Xu 2014, IEEE SPL 21(11), §III);
 /// variance S10/m + S01/n (DeLong et al. 1988, §2). `None` when a class has
 /// fewer than two rows or the lengths differ.
 #[must_use]
@@ -311,7 +351,10 @@ pub fn roc_curve(scores: &[f64], positive: &[bool], max_points: usize) -> Vec<[f
     for (&neg, &pos) in table.negatives.iter().zip(&table.positives).rev() {
         false_pos += neg;
         true_pos += pos;
-        points.push([false_pos as f64 / n_neg as f64, true_pos as f64 / n_pos as f64]);
+        points.push([
+            false_pos as f64 / n_neg as f64,
+            true_pos as f64 / n_pos as f64,
+        ]);
     }
     thin(points, max_points.max(2))
 }
@@ -342,8 +385,12 @@ mod tests {
     const Y: [bool; 12] = [
         true, true, true, true, true, false, false, false, false, false, false, false,
     ];
-    const S1: [f64; 12] = [0.9, 0.8, 0.7, 0.55, 0.4, 0.6, 0.5, 0.35, 0.3, 0.2, 0.1, 0.45];
-    const S2: [f64; 12] = [0.7, 0.9, 0.3, 0.6, 0.5, 0.8, 0.2, 0.4, 0.1, 0.35, 0.25, 0.65];
+    const S1: [f64; 12] = [
+        0.9, 0.8, 0.7, 0.55, 0.4, 0.6, 0.5, 0.35, 0.3, 0.2, 0.1, 0.45,
+    ];
+    const S2: [f64; 12] = [
+        0.7, 0.9, 0.3, 0.6, 0.5, 0.8, 0.2, 0.4, 0.1, 0.35, 0.25, 0.65,
+    ];
 
     #[test]
     fn hanley_mcneil_table_auc_and_se() {
@@ -456,7 +503,9 @@ mod tests {
         (2usize..60).prop_flat_map(|n| {
             (
                 prop::collection::vec(-50i32..50, n).prop_map(|v| {
-                    v.into_iter().map(|x| f64::from(x) / 7.0).collect::<Vec<_>>()
+                    v.into_iter()
+                        .map(|x| f64::from(x) / 7.0)
+                        .collect::<Vec<_>>()
                 }),
                 prop::collection::vec(any::<bool>(), n),
             )

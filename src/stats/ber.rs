@@ -99,12 +99,12 @@ pub fn min_ber(scores: &[f64], positive: &[bool]) -> (f64, f64) {
     }
     let mut best = (0.5, f64::INFINITY);
     let (mut flagged_neg, mut flagged_pos) = (0u64, 0u64);
-    for category in (0..table.scores.len()).rev() {
+    for category in (0..table.len()).rev() {
         flagged_neg += table.negatives[category];
         flagged_pos += table.positives[category];
         let ber = error_rate(flagged_neg, n_neg, n_pos - flagged_pos, n_pos);
         if ber < best.0 {
-            best = (ber, table.scores[category]);
+            best = (ber, table.score(category));
         }
     }
     best
@@ -127,11 +127,13 @@ mod tests {
         // Feldman et al. (2015), WORKED-EXAMPLES §9 check: with p0 = 0.30 and p1 = 0.60,
         // predicting X = 1 iff selected gives BER = [(1 − p1) + p0]/2 = 0.35 ≤ ½ − β/8 = 0.4625;
         // at the boundary p0 = 0.40, p1 = 0.50 it is 0.45, equal to the bound.
+        let bound = |beta: f64| 0.5 - beta / 8.0;
         let (scores, group) = groups(3, 6);
-        assert!((ber_at_threshold(&scores, &group, 0.5) - 0.35).abs() < 1e-15);
-        assert!(0.35 <= 0.5 - 0.30 / 8.0);
+        let ber = ber_at_threshold(&scores, &group, 0.5);
+        assert!((ber - 0.35).abs() < 1e-15);
+        assert!(ber <= bound(0.30));
         let (scores, group) = groups(4, 5);
-        assert!((ber_at_threshold(&scores, &group, 0.5) - (0.5 - 0.40 / 8.0)).abs() < 1e-15);
+        assert!((ber_at_threshold(&scores, &group, 0.5) - bound(0.40)).abs() < 1e-15);
     }
 
     #[test]

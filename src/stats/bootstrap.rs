@@ -147,9 +147,15 @@ mod tests {
         // 0.2 grid and the 2.5 % quantiles of 9999 draws move by a step or two between
         // generators, so ±0.4 is allowed; BCa's upper end must also clear the percentile one.
         let (lo, hi) = percentile_interval(5, 9999, 0.95, 12_345, mean_of(&X));
-        assert!((lo - 1.8).abs() <= 0.4 && (hi - 7.2).abs() <= 0.4, "({lo}, {hi})");
+        assert!(
+            (lo - 1.8).abs() <= 0.4 && (hi - 7.2).abs() <= 0.4,
+            "({lo}, {hi})"
+        );
         let (b_lo, b_hi) = bca_interval(5, 9999, 0.95, 12_345, mean_of(&X));
-        assert!((b_lo - 2.0).abs() <= 0.4 && (b_hi - 8.4).abs() <= 0.4, "({b_lo}, {b_hi})");
+        assert!(
+            (b_lo - 2.0).abs() <= 0.4 && (b_hi - 8.4).abs() <= 0.4,
+            "({b_lo}, {b_hi})"
+        );
         assert!(b_hi > hi + 0.5);
     }
 
@@ -167,6 +173,9 @@ mod tests {
         let (lo, hi) = percentile_interval(400, 4000, 0.95, 9, mean_of(&values));
         assert!((lo - (mean - 1.959_964 * se)).abs() < 0.2 * se, "{lo}");
         assert!((hi - (mean + 1.959_964 * se)).abs() < 0.2 * se, "{hi}");
-        assert_eq!(percentile_interval(400, 4000, 0.95, 9, mean_of(&values)), (lo, hi));
+        assert_eq!(
+            percentile_interval(400, 4000, 0.95, 9, mean_of(&values)),
+            (lo, hi)
+        );
     }
 }

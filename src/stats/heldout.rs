@@ -52,7 +52,10 @@ mod tests {
         // Predicting the class shares π for every row gives log-loss −Σ π ln π = H(A)
         // (Cover & Thomas 2006, eq. 2.1), hence exactly zero held-out information.
         let labels = [0, 0, 0, 1, 2, 2];
-        let proba: Vec<f64> = labels.iter().flat_map(|_| [0.5, 1.0 / 6.0, 1.0 / 3.0]).collect();
+        let proba: Vec<f64> = labels
+            .iter()
+            .flat_map(|_| [0.5, 1.0 / 6.0, 1.0 / 3.0])
+            .collect();
         assert!(heldout_information(&proba, 3, &labels).abs() < 1e-15);
     }
 

@@ -24,14 +24,17 @@ pub fn entropy(counts: &[u64]) -> f64 {
     if total == 0 {
         return 0.0;
     }
-    let ln_total = (total as f64).ln();
-    let h: f64 = counts
+    let n = total as f64;
+    (n.ln() - sum_c_ln_c(counts) / n).max(0.0)
+}
+
+/// Σ c ln c over counts, skipping 0 and 1 (whose terms are 0).
+fn sum_c_ln_c(counts: &[u64]) -> f64 {
+    counts
         .iter()
-        .filter(|&&c| c > 0)
-        .map(|&c| c as f64 * (ln_total - (c as f64).ln()))
-        .sum::<f64>()
-        / total as f64;
-    h.max(0.0)
+        .filter(|&&c| c > 1)
+        .map(|&c| c as f64 * (c as f64).ln())
+        .sum()
 }
 
 /// Miller–Madow entropy Ĥ + (m − 1)/(2N), m the occupied cells
@@ -168,21 +171,15 @@ impl Margins {
     }
 
     /// Plug-in MI; 0 when either side has a single level, clipped at 0.
+    /// Uses I = ln N + (Σ n_ij ln n_ij − Σ a_i ln a_i − Σ b_j ln b_j)/N,
+    /// one logarithm per cell with a count above 1.
     fn mutual_information(&self, table: &Contingency) -> f64 {
         if self.rows.len() <= 1 || self.cols.len() <= 1 {
             return 0.0;
         }
-        let row_totals = table.row_totals();
-        let col_totals = table.col_totals();
         let n = self.total as f64;
-        let mi: f64 = table
-            .nonzero_cells()
-            .map(|(r, c, count)| {
-                let outer = row_totals[r] as f64 * col_totals[c] as f64;
-                count as f64 / n * ((count as f64).ln() + n.ln() - outer.ln())
-            })
-            .sum();
-        mi.max(0.0)
+        let cells = sum_c_ln_c(&table.counts) - sum_c_ln_c(&self.rows) - sum_c_ln_c(&self.cols);
+        (n.ln() + cells / n).max(0.0)
     }
 
     /// (m_xy − m_x − m_y + 1)/(2N), the Miller (1955) bias of plug-in MI.
@@ -190,7 +187,7 @@ impl Margins {
         if self.total == 0 {
             return 0.0;
         }
-        let cells = table.nonzero_cells().count() as f64;
+        let cells = table.counts.iter().filter(|&&c| c > 0).count() as f64;
         let occupied = cells - self.rows.len() as f64 - self.cols.len() as f64 + 1.0;
         occupied / (2.0 * self.total as f64)
     }
@@ -228,15 +225,15 @@ fn multiplicities(totals: &[u64]) -> Vec<(u64, u64)> {
 fn cell_expected_information(total: u64, a: u64, b: u64) -> f64 {
     let lowest = (a + b).saturating_sub(total);
     let highest = a.min(b);
-    let mode = (((a + 1) as u128 * (b + 1) as u128 / (total + 2) as u128) as u64)
-        .clamp(lowest, highest);
-    let ln_mode_pmf = ln_factorial(a) + ln_factorial(b) + ln_factorial(total - a)
-        + ln_factorial(total - b)
-        - ln_factorial(total)
-        - ln_factorial(mode)
-        - ln_factorial(a - mode)
-        - ln_factorial(b - mode)
-        - ln_factorial(total + mode - a - b);
+    let mode =
+        (((a + 1) as u128 * (b + 1) as u128 / (total + 2) as u128) as u64).clamp(lowest, highest);
+    let ln_mode_pmf =
+        ln_factorial(a) + ln_factorial(b) + ln_factorial(total - a) + ln_factorial(total - b)
+            - ln_factorial(total)
+            - ln_factorial(mode)
+            - ln_factorial(a - mode)
+            - ln_factorial(b - mode)
+            - ln_factorial(total + mode - a - b);
     let mode_pmf = ln_mode_pmf.exp();
     let (n_total, ln_ab) = (total as f64, (a as f64).ln() + (b as f64).ln());
     let term = |n: u64, pmf: f64| {
@@ -377,7 +374,11 @@ mod tests {
             ami_sum += s.ami;
             mi_sum += s.mi_nats;
         }
-        assert!((ami_sum / 2000.0).abs() < 0.002, "mean AMI {}", ami_sum / 2000.0);
+        assert!(
+            (ami_sum / 2000.0).abs() < 0.002,
+            "mean AMI {}",
+            ami_sum / 2000.0
+        );
         assert!((mi_sum / 2000.0 - 0.03).abs() < 0.005);
     }
 

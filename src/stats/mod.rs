@@ -28,6 +28,5 @@ pub use information::{
 pub use multiclass::{hand_till, macro_ovr, macro_ovr_compare};
 pub use special::{normal_cdf, normal_quantile, two_sided_p_value};
 pub use tables::{
-    ChiSquareTest, chi_square_test, cramers_v, g_test, selection_rate_ratio,
-    violates_four_fifths,
+    ChiSquareTest, chi_square_test, cramers_v, g_test, selection_rate_ratio, violates_four_fifths,
 };

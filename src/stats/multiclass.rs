@@ -105,7 +105,13 @@ pub fn hand_till(proba: &[f64], n_classes: usize, labels: &[u32]) -> Option<f64>
 }
 
 /// Â(i|j): AUC of the class-`i` score with class `i` positive, on rows of classes `i` and `j`.
-fn pairwise_auc(proba: &[f64], n_classes: usize, labels: &[u32], i: usize, j: usize) -> Option<f64> {
+fn pairwise_auc(
+    proba: &[f64],
+    n_classes: usize,
+    labels: &[u32],
+    i: usize,
+    j: usize,
+) -> Option<f64> {
     let (scores, positive): (Vec<f64>, Vec<bool>) = labels
         .iter()
         .enumerate()
@@ -150,8 +156,12 @@ mod tests {
         // and the influences coincide, so macro OvR equals DeLong et al. (1988) exactly.
         // Data: WORKED-EXAMPLES §2 constructed example.
         let y = [1u32, 1, 1, 1, 1, 0, 0, 0, 0, 0, 0, 0];
-        let s1 = [0.9, 0.8, 0.7, 0.55, 0.4, 0.6, 0.5, 0.35, 0.3, 0.2, 0.1, 0.45];
-        let s2 = [0.7, 0.9, 0.3, 0.6, 0.5, 0.8, 0.2, 0.4, 0.1, 0.35, 0.25, 0.65];
+        let s1 = [
+            0.9, 0.8, 0.7, 0.55, 0.4, 0.6, 0.5, 0.35, 0.3, 0.2, 0.1, 0.45,
+        ];
+        let s2 = [
+            0.7, 0.9, 0.3, 0.6, 0.5, 0.8, 0.2, 0.4, 0.1, 0.35, 0.25, 0.65,
+        ];
         let as_proba = |s: &[f64]| s.iter().flat_map(|&p| [1.0 - p, p]).collect::<Vec<_>>();
         let positive: Vec<bool> = y.iter().map(|&l| l == 1).collect();
         let binary = delong(&s1, &positive).unwrap();
