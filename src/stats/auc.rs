@@ -7,8 +7,11 @@ use super::special::{Z_975, two_sided_p_value};
 /// An AUC with its estimated variance and 95 % normal-theory interval.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct AucEstimate {
+    /// Mann–Whitney AUC (or a macro average of them).
     pub auc: f64,
+    /// Estimated variance of `auc`.
     pub variance: f64,
+    /// Standard error, √variance.
     pub se: f64,
     /// Lower end of `auc ± 1.96·se`, clamped to `[0, 1]`.
     pub low: f64,
@@ -34,12 +37,17 @@ impl AucEstimate {
 /// A test of the difference of two AUCs: `z = difference / se`, two-sided normal p-value.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct AucComparison {
+    /// AUC of the first score.
     pub auc_a: f64,
+    /// AUC of the second score.
     pub auc_b: f64,
     /// `auc_a − auc_b`.
     pub difference: f64,
+    /// Standard error of the difference.
     pub se: f64,
+    /// `difference / se`.
     pub z: f64,
+    /// Two-sided p-value of `z` under N(0, 1).
     pub p_value: f64,
 }
 
@@ -74,7 +82,9 @@ impl AucComparison {
 pub(crate) struct ScoreTable {
     /// Order keys of the distinct scores, ascending.
     keys: Vec<u64>,
+    /// Negatives per category.
     pub negatives: Vec<u64>,
+    /// Positives per category.
     pub positives: Vec<u64>,
 }
 
@@ -250,7 +260,9 @@ impl Placements {
 /// to the DeLong variance and Σ_i φ_i ψ_i equal to the DeLong covariance with
 /// another AUC on the same rows and classes.
 pub(crate) struct Influence {
+    /// The AUC (or macro average) the influences belong to.
     pub auc: f64,
+    /// φ_i for every input row, in input order.
     pub values: Vec<f64>,
 }
 

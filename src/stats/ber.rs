@@ -4,16 +4,17 @@
 //! of that class that is misclassified. ½ (binary) or 1 − 1/K is chance.
 
 use super::auc::ScoreTable;
+use super::multiclass::shapes_agree;
 
 /// BER of the class-balanced Bayes decision on row-major probabilities
 /// (`proba[i * n_classes + k]`): predict argmax_k p_k/π_k, π the class shares
 /// of `labels`, which is the Bayes rule under equal class weights (Feldman et
 /// al. 2015, §3; Duda, Hart & Stork 2001, §2.3). BER = mean over the classes
-/// present of the within-class error rate. `NaN` when the shapes disagree or
-/// there are no rows.
+/// present of the within-class error rate. `NaN` when the shapes disagree, a
+/// label is out of range or there are no rows.
 #[must_use]
 pub fn balanced_error_rate(proba: &[f64], n_classes: usize, labels: &[u32]) -> f64 {
-    if n_classes == 0 || labels.is_empty() || proba.len() != n_classes * labels.len() {
+    if !shapes_agree(proba, n_classes, labels) {
         return f64::NAN;
     }
     let mut class_sizes = vec![0u64; n_classes];

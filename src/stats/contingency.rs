@@ -6,7 +6,9 @@
 /// occur leave all-zero rows, which every measure in this module ignores.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Contingency {
+    /// Number of feature levels.
     pub rows: usize,
+    /// Number of protected classes.
     pub cols: usize,
     /// `counts[r * cols + c]`: rows with feature level `r` and class `c`.
     pub counts: Vec<u64>,

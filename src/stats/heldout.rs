@@ -2,6 +2,7 @@
 //! predictions of a surrogate reduce the uncertainty about the protected class.
 
 use super::information::entropy;
+use super::multiclass::shapes_agree;
 
 /// Probabilities are floored here before taking logs, so one confident miss
 /// costs at most −ln 1e-15 ≈ 34.5 nats instead of infinity.
@@ -24,10 +25,10 @@ pub const PROBABILITY_FLOOR: f64 = 1e-15;
 /// in the frequency surrogate that produced `proba`: additive smoothing with
 /// weight m toward the training-fold class shares,
 /// p(a | level) = (n_{level,a} + m·π_a) / (n_level + m). `NaN` when the
-/// shapes disagree or there are no rows.
+/// shapes disagree, a label is out of range or there are no rows.
 #[must_use]
 pub fn heldout_information(proba: &[f64], n_classes: usize, labels: &[u32]) -> f64 {
-    if n_classes == 0 || labels.is_empty() || proba.len() != n_classes * labels.len() {
+    if !shapes_agree(proba, n_classes, labels) {
         return f64::NAN;
     }
     let mut class_counts = vec![0u64; n_classes];

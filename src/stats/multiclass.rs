@@ -30,14 +30,17 @@ fn class_column(proba: &[f64], n_classes: usize, class: usize) -> Vec<f64> {
         .collect()
 }
 
-/// `true` when `proba` holds exactly one row of `n_classes ≥ 2` scores per label.
-fn shapes_agree(proba: &[f64], n_classes: usize, labels: &[u32]) -> bool {
-    n_classes >= 2 && proba.len() == n_classes * labels.len()
+/// `true` when there are rows, one row of `n_classes` scores per label and
+/// every label is below `n_classes`.
+pub(crate) fn shapes_agree(proba: &[f64], n_classes: usize, labels: &[u32]) -> bool {
+    !labels.is_empty()
+        && proba.len() == n_classes * labels.len()
+        && labels.iter().all(|&l| (l as usize) < n_classes)
 }
 
 /// Macro-averaged one-vs-rest AUC and its averaged per-row influence.
 fn macro_influence(proba: &[f64], n_classes: usize, labels: &[u32]) -> Option<Influence> {
-    if !shapes_agree(proba, n_classes, labels) {
+    if n_classes < 2 || !shapes_agree(proba, n_classes, labels) {
         return None;
     }
     let mut total = Influence {
@@ -90,7 +93,7 @@ pub fn macro_ovr_compare(
 /// absent or the shapes disagree.
 #[must_use]
 pub fn hand_till(proba: &[f64], n_classes: usize, labels: &[u32]) -> Option<f64> {
-    if !shapes_agree(proba, n_classes, labels) {
+    if n_classes < 2 || !shapes_agree(proba, n_classes, labels) {
         return None;
     }
     let mut sum = 0.0;

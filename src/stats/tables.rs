@@ -6,8 +6,11 @@ use super::special::chi_square_sf;
 /// A test statistic with its χ² degrees of freedom and upper-tail p-value.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct ChiSquareTest {
+    /// The test statistic (χ² or G).
     pub statistic: f64,
+    /// Degrees of freedom, (R − 1)(C − 1) over occupied rows and columns.
     pub dof: u64,
+    /// P(χ²_dof ≥ statistic).
     pub p_value: f64,
 }
 
