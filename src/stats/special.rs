@@ -12,6 +12,11 @@ const SERIES_EPS: f64 = 1e-16;
 /// Iteration cap for the incomplete-gamma series and continued fraction.
 const MAX_ITERATIONS: usize = 10_000;
 
+/// Beyond this |x|, erfc(x) rounds to 0 in `f64` (it is below the smallest
+/// subnormal, 4.9e-324), so 0 (or 2 for −x) is returned directly; this also
+/// keeps infinite arguments away from ∞ · 0.
+const ERFC_UNDERFLOW: f64 = 27.3;
+
 /// Two-sided 97.5 % standard normal quantile, Φ⁻¹(0.975).
 pub const Z_975: f64 = 1.959_963_984_540_054;
 
@@ -144,6 +149,9 @@ pub fn erfc(x: f64) -> f64 {
     if x.is_nan() {
         return f64::NAN;
     }
+    if x.abs() > ERFC_UNDERFLOW {
+        return if x > 0.0 { 0.0 } else { 2.0 };
+    }
     let square = x * x;
     let prefactor = x.abs() * (-square).exp() / std::f64::consts::PI.sqrt();
     let q = upper_gamma_ratio(0.5, square, prefactor);
@@ -259,6 +267,10 @@ mod tests {
         for (x, expected) in cases {
             assert_relative(erfc(x), expected, 4e-15);
         }
+        // Limits: erfc(+∞) = 0, erfc(−∞) = 2 (A&S 1964, eq. 7.1.16).
+        assert_eq!(erfc(f64::INFINITY), 0.0);
+        assert_eq!(erfc(f64::NEG_INFINITY), 2.0);
+        assert_eq!(two_sided_p_value(f64::INFINITY), 0.0);
     }
 
     #[test]
