@@ -3,6 +3,7 @@
 //! is the z-test of two independent AUCs.
 
 use crate::report::{FeatureResult, Flag, ProtectedResult, Report, SCHEMA_VERSION};
+use crate::stats::two_sided_p_value;
 use serde::Serialize;
 use std::collections::HashMap;
 use std::fmt::Write as _;
@@ -235,7 +236,7 @@ impl AucChange {
         let z = change
             .zip(combined_se(old.se, new.se))
             .map(|(d, se)| d / se);
-        let p_value = z.map(two_sided_p);
+        let p_value = z.map(two_sided_p_value);
         Self {
             name: name.to_string(),
             old_auc: old.auc,
@@ -282,71 +283,6 @@ fn combined_se(old: Option<f64>, new: Option<f64>) -> Option<f64> {
     (se.is_finite() && se > 0.0).then_some(se)
 }
 
-/// Two-sided standard-normal tail probability P(|Z| ≥ |z|) = erfc(|z|/√2).
-fn two_sided_p(z: f64) -> f64 {
-    erfc(z.abs() / std::f64::consts::SQRT_2)
-}
-
-/// Complementary error function to about 1e-16 absolute error, with
-/// erfc(−x) = 2 − erfc(x) for negative x. Below 2.5: erfc = 1 − erf with the
-/// positive-term series erf(x) = (2/√π) e^(−x²) Σ 2ⁿ x^(2n+1) / (1·3·…·(2n+1))
-/// (Abramowitz & Stegun 1964, eq. 7.1.6), which has no cancellation. From 2.5:
-/// the continued fraction √π e^(x²) erfc(x) = 1/(x+ ½/(x+ 1/(x+ (3/2)/(x+ …))))
-/// (A&S eq. 7.1.14; both equation numbers from memory), evaluated by the
-/// modified Lentz method (Press et al. 2007, Numerical Recipes 3rd ed., §5.2),
-/// which keeps full relative precision in the tail.
-fn erfc(x: f64) -> f64 {
-    if x.is_nan() {
-        return f64::NAN;
-    }
-    if x < 0.0 {
-        2.0 - erfc(-x)
-    } else if x < 2.5 {
-        1.0 - erf_series(x)
-    } else {
-        (-x * x).exp() / (std::f64::consts::PI.sqrt() * erfc_continued_fraction(x))
-    }
-}
-
-fn erf_series(x: f64) -> f64 {
-    let ratio = 2.0 * x * x;
-    let mut term = x;
-    let mut sum = x;
-    for n in 1..200 {
-        term *= ratio / f64::from(2 * n + 1);
-        sum += term;
-        if term < sum * f64::EPSILON * 0.5 {
-            break;
-        }
-    }
-    std::f64::consts::FRAC_2_SQRT_PI * (-x * x).exp() * sum
-}
-
-/// x + a₁/(x + a₂/(x + …)) with aₖ = k/2, by modified Lentz.
-fn erfc_continued_fraction(x: f64) -> f64 {
-    const TINY: f64 = 1e-300;
-    let mut value = x;
-    let mut c = x;
-    let mut d = 0.0;
-    for k in 1..500 {
-        let a = f64::from(k) / 2.0;
-        d = x + a * d;
-        c = x + a / c;
-        if d.abs() < TINY {
-            d = TINY;
-        }
-        if c.abs() < TINY {
-            c = TINY;
-        }
-        d = 1.0 / d;
-        let delta = c * d;
-        value *= delta;
-        if (delta - 1.0).abs() < f64::EPSILON {
-            break;
-        }
-    }
-    value
-}
 
 /// Compares two reports: per protected attribute, features added and removed,
 /// flag changes and AUC changes tested at `alpha` (two-sided), plus the
@@ -836,46 +772,3 @@ fn render_protected_markdown(out: &mut String, p: &ProtectedDiff, alpha: f64) {
     }
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    // Check values of erfc from CPython 3's math.erfc (an independent reference
-    // implementation), e.g. erfc(1) = 0.15729920705028513, which also
-    // matches Abramowitz & Stegun (1964) Table 7.1 to its 10 printed decimals
-    // (erf(1) = 0.8427007929, from memory). Tolerance: below 2.5 the value is
-    // 1 − erf, so the error is absolute, 2e-15 (a few ulps of 1); from 2.5 the
-    // continued fraction keeps relative precision, 1e-15 relative.
-    #[test]
-    fn erfc_matches_reference_values() {
-        let cases = [
-            (0.0, 1.0),
-            (0.5, 0.479_500_122_186_953_5),
-            (1.0, 0.157_299_207_050_285_13),
-            (2.0, 0.004_677_734_981_047_265),
-            (2.5, 0.000_406_952_017_444_958_9),
-            (3.0, 2.209_049_699_858_543_8e-5),
-            (5.0, 1.537_459_794_428_035_1e-12),
-            // erfc(−x) = 2 − erfc(x): erfc(−1) = 1.842700792949715.
-            (-1.0, 1.842_700_792_949_715),
-        ];
-        for (x, expected) in cases {
-            let got = erfc(x);
-            let tolerance = if x < 2.5 { 2e-15 } else { 1e-15 * expected };
-            assert!(
-                (got - expected).abs() <= tolerance,
-                "erfc({x}) = {got}, expected {expected}"
-            );
-        }
-    }
-
-    // The two branches must agree where they meet (both are exact formulas of
-    // A&S 7.1.6 and 7.1.14), so the p-value has no jump at |z| = 2.5·√2.
-    #[test]
-    fn erfc_branches_agree_at_the_switch() {
-        let x = 2.5;
-        let series = 1.0 - erf_series(x);
-        let fraction = (-x * x).exp() / (std::f64::consts::PI.sqrt() * erfc_continued_fraction(x));
-        assert!((series - fraction).abs() < 1e-15, "{series} vs {fraction}");
-    }
-}
