@@ -4,10 +4,12 @@
 //! fitted model that scores other rows; [`cross_fit`] only knows this trait,
 //! so nothing is ever scored on rows it was fitted on.
 
+pub mod boosted;
 pub mod frequency;
 pub mod logistic;
 pub mod tree;
 
+pub use boosted::BoostedSurrogate;
 pub use frequency::FrequencySurrogate;
 pub use logistic::LogisticSurrogate;
 pub use tree::TreeSurrogate;
