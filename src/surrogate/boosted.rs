@@ -601,6 +601,16 @@ fn probabilities(raw: &[f64], out: &mut [f64]) {
     super::normalise(out);
 }
 
+/// Probability of `class` from one row's raw scores, as [`probabilities`] gives it.
+fn class_probability(raw: &[f64], class: usize) -> f64 {
+    if raw.len() == 1 {
+        let p = 1.0 / (1.0 + (-raw[0]).exp());
+        return if class == 1 { p } else { 1.0 - p };
+    }
+    let top = raw.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    (raw[class] - top).exp() / raw.iter().map(|&z| (z - top).exp()).sum::<f64>()
+}
+
 /// Log-loss of one row: −log p(y) from its raw scores.
 fn row_loss(raw: &[f64], class: usize) -> f64 {
     if raw.len() == 1 {
@@ -617,37 +627,25 @@ fn row_loss(raw: &[f64], class: usize) -> f64 {
     }
 }
 
-/// Gradients and hessians of the log-loss per slot, slot-major (`slots × rows`).
-fn gradients(
-    raw: &[f64],
-    classes: &[u32],
-    k: usize,
-    slots: usize,
-) -> (Vec<Vec<f64>>, Vec<Vec<f64>>) {
-    let per_row: Vec<(Vec<f64>, Vec<f64>)> = raw
-        .par_chunks_exact(slots)
-        .zip(classes.par_iter())
-        .map(|(z, &y)| {
-            let mut p = vec![0.0; k];
-            probabilities(z, &mut p);
-            let slot_class = |s: usize| if slots == 1 { 1 } else { s };
-            (0..slots)
-                .map(|s| {
-                    let q = p[slot_class(s)];
-                    (
-                        q - f64::from(u8::from(y as usize == slot_class(s))),
-                        q * (1.0 - q),
-                    )
-                })
-                .unzip()
-        })
-        .collect();
-    let g = (0..slots)
-        .map(|s| per_row.iter().map(|(g, _)| g[s]).collect())
-        .collect();
-    let h = (0..slots)
-        .map(|s| per_row.iter().map(|(_, h)| h[s]).collect())
-        .collect();
+/// Gradients and hessians of the log-loss, slot-major (`slots × rows`):
+/// g = p − 1[y = class], h = p (1 − p) for each slot's class.
+fn gradients(raw: &[f64], classes: &[u32], slots: usize) -> (Vec<f64>, Vec<f64>) {
+    let n = classes.len();
+    let mut g = vec![0.0; slots * n];
+    let mut h = vec![0.0; slots * n];
+    let slot_class = |s: usize| if slots == 1 { 1 } else { s };
+    for slot in 0..slots {
+        let class = slot_class(slot) as u32;
+        g[slot * n..(slot + 1) * n]
+            .par_iter_mut()
+            .zip(h[slot * n..(slot + 1) * n].par_iter_mut())
+            .enumerate()
+            .for_each(|(row, (g, h))| {
+                let q = class_probability(&raw[row * slots..(row + 1) * slots], class as usize);
+                *g = q - f64::from(u8::from(classes[row] == class));
+                *h = q * (1.0 - q);
+            });
+    }
     (g, h)
 }
 
@@ -760,14 +758,15 @@ impl BoostedSurrogate {
         raw: &mut [f64],
     ) {
         let slots = model.baseline.len();
-        let (g, h) = gradients(raw, classes, model.k, slots);
+        let (g, h) = gradients(raw, classes, slots);
+        let n = classes.len();
         let mut iteration = Vec::with_capacity(slots);
         for slot in 0..slots {
             let grower = TreeGrower {
                 params: self,
                 binned,
-                g: &g[slot],
-                h: &h[slot],
+                g: &g[slot * n..(slot + 1) * n],
+                h: &h[slot * n..(slot + 1) * n],
                 rows: (0..classes.len() as u32).collect(),
                 nodes: Vec::new(),
             };

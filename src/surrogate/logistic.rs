@@ -18,7 +18,7 @@
 //! column, which bounds the Newton system; such columns are better screened by
 //! the frequency surrogate anyway.
 
-use super::{Fitted, Surrogate, SurrogateError, check_inputs};
+use super::{Fitted, Surrogate, SurrogateError, check_inputs, class_shares};
 use crate::data::{EncodedColumn, FeatureKind};
 
 /// Patterns beyond this many distinct code combinations are not merged.
@@ -124,7 +124,7 @@ impl Block {
     }
 
     /// Appends this column's non-zero features of `row`, offset by `base`.
-    fn push(&self, column: &EncodedColumn, row: usize, base: u32, out: &mut Vec<(u32, f64)>) {
+    fn push(&self, column: &EncodedColumn, row: usize, base: u32, out: &mut SparseRow) {
         match self {
             Self::Numeric {
                 median,
@@ -135,17 +135,17 @@ impl Block {
                 let v = column.raw.as_ref().map_or(f64::NAN, |raw| raw[row]);
                 let missing = v.is_nan();
                 let value = if missing { *median } else { v };
-                out.push((base, (value - mean[0]) / scale[0]));
+                out.push(base, (value - mean[0]) / scale[0]);
                 if *indicator {
-                    out.push((
+                    out.push(
                         base + 1,
                         (f64::from(u8::from(missing)) - mean[1]) / scale[1],
-                    ));
+                    );
                 }
             }
             Self::OneHot { slot_of_code } => {
                 if let Some(&slot) = slot_of_code.get(column.codes[row] as usize) {
-                    out.push((base + slot, 1.0));
+                    out.push(base + slot, 1.0);
                 }
             }
         }
@@ -201,18 +201,37 @@ impl Design {
         }
     }
 
-    fn features(&self, columns: &[&EncodedColumn], row: usize, out: &mut Vec<(u32, f64)>) {
-        out.clear();
+    fn features(&self, columns: &[&EncodedColumn], row: usize, out: &mut SparseRow) {
+        out.index.clear();
+        out.value.clear();
         for ((block, column), &base) in self.blocks.iter().zip(columns).zip(&self.offsets) {
             block.push(column, row, base, out);
         }
     }
 }
 
-/// Weighted design rows: sparse features and class counts per pattern.
+/// One design row's non-zero features.
+#[derive(Debug, Default)]
+struct SparseRow {
+    index: Vec<u32>,
+    value: Vec<f64>,
+}
+
+impl SparseRow {
+    fn push(&mut self, index: u32, value: f64) {
+        self.index.push(index);
+        self.value.push(value);
+    }
+}
+
+/// Weighted design rows: sparse features (compressed rows) and class counts per pattern.
+#[derive(Default)]
 struct Patterns {
-    features: Vec<Vec<(u32, f64)>>,
-    /// `features.len() × k` class counts.
+    /// Pattern `i` has the non-zeros `start[i]..start[i + 1]` of `index`/`value`.
+    start: Vec<usize>,
+    index: Vec<u32>,
+    value: Vec<f64>,
+    /// `patterns × k` class counts.
     counts: Vec<f64>,
 }
 
@@ -239,69 +258,61 @@ impl Patterns {
         k: usize,
         train: &[usize],
     ) -> Self {
-        match pattern_radix(columns) {
-            Some(radix) => Self::grouped(design, columns, target, k, train, &radix),
-            None => Self::per_row(design, columns, target, k, train),
-        }
-    }
-
-    fn grouped(
-        design: &Design,
-        columns: &[&EncodedColumn],
-        target: &[u32],
-        k: usize,
-        train: &[usize],
-        radix: &[u64],
-    ) -> Self {
+        let radix = pattern_radix(columns);
         let key = |row: usize| -> usize {
-            columns
-                .iter()
-                .zip(radix)
-                .map(|(c, &r)| u64::from(c.codes[row]) * r)
-                .sum::<u64>() as usize
+            radix.as_ref().map_or(0, |radix| {
+                columns
+                    .iter()
+                    .zip(radix)
+                    .map(|(c, &r)| u64::from(c.codes[row]) * r)
+                    .sum::<u64>() as usize
+            })
         };
         let n_keys = radix
-            .last()
-            .zip(columns.last())
-            .map_or(1, |(&r, c)| r as usize * c.n_levels as usize);
-        let mut pattern_of_key = vec![u32::MAX; n_keys];
+            .as_ref()
+            .and_then(|r| r.last().zip(columns.last()))
+            .map_or(0, |(&r, c)| r as usize * c.n_levels as usize);
+        // Without grouping every row is its own pattern (`pattern_of_key` stays empty).
+        let mut pattern_of_key = vec![usize::MAX; n_keys];
         let mut patterns = Self {
-            features: Vec::new(),
-            counts: Vec::new(),
+            start: vec![0],
+            ..Self::default()
         };
+        let mut x = SparseRow::default();
         for &row in train {
-            let slot = &mut pattern_of_key[key(row)];
-            if *slot == u32::MAX {
-                *slot = patterns.features.len() as u32;
-                let mut f = Vec::new();
-                design.features(columns, row, &mut f);
-                patterns.features.push(f);
-                patterns.counts.extend(std::iter::repeat_n(0.0, k));
-            }
-            patterns.counts[*slot as usize * k + target[row] as usize] += 1.0;
+            let key = key(row);
+            let known = pattern_of_key
+                .get(key)
+                .copied()
+                .filter(|&p| p != usize::MAX);
+            let pattern = known.unwrap_or_else(|| {
+                let new = patterns.len();
+                if let Some(slot) = pattern_of_key.get_mut(key) {
+                    *slot = new;
+                }
+                design.features(columns, row, &mut x);
+                patterns.push(&x, k);
+                new
+            });
+            patterns.counts[pattern * k + target[row] as usize] += 1.0;
         }
         patterns
     }
 
-    fn per_row(
-        design: &Design,
-        columns: &[&EncodedColumn],
-        target: &[u32],
-        k: usize,
-        train: &[usize],
-    ) -> Self {
-        let mut counts = vec![0.0; train.len() * k];
-        let features = train
-            .iter()
-            .enumerate()
-            .map(|(i, &row)| {
-                counts[i * k + target[row] as usize] = 1.0;
-                let mut f = Vec::new();
-                design.features(columns, row, &mut f);
-                f
-            })
-            .collect();
-        Self { features, counts }
+    fn push(&mut self, x: &SparseRow, k: usize) {
+        self.index.extend_from_slice(&x.index);
+        self.value.extend_from_slice(&x.value);
+        self.start.push(self.index.len());
+        self.counts.extend(std::iter::repeat_n(0.0, k));
+    }
+
+    fn len(&self) -> usize {
+        self.start.len() - 1
+    }
+
+    fn row(&self, i: usize) -> (&[u32], &[f64]) {
+        let range = self.start[i]..self.start[i + 1];
+        (&self.index[range.clone()], &self.value[range])
     }
 }
 
@@ -315,6 +326,27 @@ struct Coefficients {
 }
 
 impl Coefficients {
+    /// Zero weights and the prior's log-odds (or log-shares) as intercepts.
+    fn start(k: usize, width: usize, prior: &[f64]) -> Self {
+        let mut coef = Self {
+            k,
+            width,
+            theta: Vec::new(),
+        };
+        let stride = width + 1;
+        coef.theta = vec![0.0; coef.slots() * stride];
+        let log_share = |c: usize| prior[c].max(1e-12).ln();
+        for slot in 0..coef.slots() {
+            let class = coef.slot_class(slot);
+            coef.theta[slot * stride + width] = if k == 2 {
+                log_share(1) - log_share(0)
+            } else {
+                log_share(class)
+            };
+        }
+        coef
+    }
+
     fn slots(&self) -> usize {
         if self.k == 2 { 1 } else { self.k }
     }
@@ -323,110 +355,95 @@ impl Coefficients {
         if self.k == 2 { 1 } else { slot }
     }
 
-    /// Class probabilities of a sparse design row (stable softmax).
-    fn proba(&self, x: &[(u32, f64)], theta: &[f64]) -> Vec<f64> {
+    /// Class probabilities of a sparse design row (stable softmax) into `out`.
+    fn proba(&self, theta: &[f64], index: &[u32], value: &[f64], out: &mut [f64]) {
         let stride = self.width + 1;
-        let mut logits = vec![0.0; self.k];
+        out.fill(0.0);
         for slot in 0..self.slots() {
             let w = &theta[slot * stride..(slot + 1) * stride];
-            logits[self.slot_class(slot)] =
-                w[self.width] + x.iter().map(|&(j, v)| w[j as usize] * v).sum::<f64>();
+            let dot: f64 = index
+                .iter()
+                .zip(value)
+                .map(|(&j, &v)| w[j as usize] * v)
+                .sum();
+            out[self.slot_class(slot)] = w[self.width] + dot;
         }
-        let top = logits.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        logits.iter_mut().for_each(|z| *z = (*z - top).exp());
-        super::normalise(&mut logits);
-        logits
+        let top = out.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        out.iter_mut().for_each(|z| *z = (*z - top).exp());
+        super::normalise(out);
     }
 }
 
-/// Penalised negative log-likelihood, its gradient and Hessian at `theta`.
-fn objective(
-    coef: &Coefficients,
-    patterns: &Patterns,
-    theta: &[f64],
-    c: f64,
-    with_derivatives: bool,
-) -> (f64, Vec<f64>, Vec<f64>) {
+/// Penalised objective with its gradient and Hessian (row-major, `dim × dim`).
+struct Evaluation {
+    value: f64,
+    grad: Vec<f64>,
+    hess: Vec<f64>,
+}
+
+/// Evaluates C · Σ counts · (−log p) + ½‖w‖² and its derivatives at `theta`.
+fn evaluate(coef: &Coefficients, patterns: &Patterns, theta: &[f64], c: f64) -> Evaluation {
     let stride = coef.width + 1;
     let dim = coef.slots() * stride;
     let mut value = 0.0;
-    let mut grad = vec![0.0; if with_derivatives { dim } else { 0 }];
-    let mut hess = vec![0.0; if with_derivatives { dim * dim } else { 0 }];
-    let mut x_full: Vec<(u32, f64)> = Vec::new();
-    for (x, counts) in patterns
-        .features
-        .iter()
-        .zip(patterns.counts.chunks_exact(coef.k))
-    {
-        let p = coef.proba(x, theta);
+    let mut grad = vec![0.0; dim];
+    let mut hess = vec![0.0; dim * dim];
+    let mut p = vec![0.0; coef.k];
+    let intercept = coef.width as u32;
+    for i in 0..patterns.len() {
+        let (index, x) = patterns.row(i);
+        let counts = &patterns.counts[i * coef.k..(i + 1) * coef.k];
+        coef.proba(theta, index, x, &mut p);
         let n: f64 = counts.iter().sum();
         value -= c * counts
             .iter()
             .zip(&p)
-            .map(|(&m, &q)| if m > 0.0 { m * q.max(1e-300).ln() } else { 0.0 })
+            .filter(|(m, _)| **m > 0.0)
+            .map(|(&m, &q)| m * q.max(1e-300).ln())
             .sum::<f64>();
-        if !with_derivatives {
-            continue;
-        }
-        x_full.clear();
-        x_full.extend_from_slice(x);
-        x_full.push((coef.width as u32, 1.0));
+        let with_intercept = || {
+            index
+                .iter()
+                .copied()
+                .zip(x.iter().copied())
+                .chain([(intercept, 1.0)])
+        };
         for a in 0..coef.slots() {
             let ca = coef.slot_class(a);
             let residual = c * (n * p[ca] - counts[ca]);
-            for &(j, v) in &x_full {
-                grad[a * stride + j as usize] += residual * v;
-            }
+            with_intercept().for_each(|(j, v)| grad[a * stride + j as usize] += residual * v);
             for b in 0..coef.slots() {
-                let cb = coef.slot_class(b);
-                let curvature = c * n * p[ca] * (f64::from(u8::from(a == b)) - p[cb]);
-                for &(i, vi) in &x_full {
+                let curvature =
+                    c * n * p[ca] * (f64::from(u8::from(a == b)) - p[coef.slot_class(b)]);
+                for (i, vi) in with_intercept() {
                     let row = (a * stride + i as usize) * dim + b * stride;
-                    for &(j, vj) in &x_full {
-                        hess[row + j as usize] += curvature * vi * vj;
-                    }
+                    with_intercept()
+                        .for_each(|(j, vj)| hess[row + j as usize] += curvature * vi * vj);
                 }
             }
         }
     }
-    add_penalty(
-        coef,
-        theta,
-        &mut value,
-        &mut grad,
-        &mut hess,
-        with_derivatives,
-    );
-    (value, grad, hess)
+    let mut evaluation = Evaluation { value, grad, hess };
+    add_penalty(coef, theta, &mut evaluation);
+    evaluation
 }
 
 /// Adds ½‖w‖² (intercepts excluded). A 1e-8 ridge on multinomial intercepts
 /// picks one point of their flat direction (softmax ignores a common shift),
 /// which leaves every probability unchanged.
-fn add_penalty(
-    coef: &Coefficients,
-    theta: &[f64],
-    value: &mut f64,
-    grad: &mut [f64],
-    hess: &mut [f64],
-    derivatives: bool,
-) {
+fn add_penalty(coef: &Coefficients, theta: &[f64], evaluation: &mut Evaluation) {
     let stride = coef.width + 1;
-    let dim = coef.slots() * stride;
+    let dim = theta.len();
     for (i, &t) in theta.iter().enumerate() {
-        let intercept = i % stride == coef.width;
-        let strength = if !intercept {
-            1.0
-        } else if coef.k > 2 {
-            1e-8
-        } else {
-            0.0
+        let is_intercept = i % stride == coef.width;
+        let strength = match (is_intercept, coef.k > 2) {
+            (false, _) => 1.0,
+            (true, true) => 1e-8,
+            (true, false) => 0.0,
         };
-        *value += 0.5 * strength * t * t;
-        if derivatives {
-            grad[i] += strength * t;
-            hess[i * dim + i] += strength;
-        }
+        evaluation.value += 0.5 * strength * t * t;
+        evaluation.grad[i] += strength * t;
+        evaluation.hess[i * dim + i] += strength;
     }
 }
 
@@ -454,39 +471,45 @@ fn solve_spd(mut h: Vec<f64>, mut b: Vec<f64>) -> Option<Vec<f64>> {
     Some(b)
 }
 
-/// Newton's method with step halving; stops when the objective stops moving.
+/// Newton's method with step halving; one pass over the patterns per accepted
+/// step. Stops when the Newton decrement gᵀH⁻¹g / 2 (the predicted decrease,
+/// Boyd & Vandenberghe 2004, "Convex Optimization", §9.5.1) falls below 1e-12
+/// relative to the objective, before rounding noise can stall the line search.
 fn newton(
     coef: &mut Coefficients,
     patterns: &Patterns,
     c: f64,
     max_iter: usize,
 ) -> Result<(), String> {
+    let mut current = evaluate(coef, patterns, &coef.theta, c);
     for _ in 0..max_iter {
-        let (value, grad, hess) = objective(coef, patterns, &coef.theta, c, true);
-        let step = solve_spd(hess, grad).ok_or("Newton system is not positive definite")?;
+        let step = solve_spd(current.hess.clone(), current.grad.clone())
+            .ok_or("Newton system is not positive definite")?;
+        let decrement: f64 = current
+            .grad
+            .iter()
+            .zip(&step)
+            .map(|(g, s)| g * s)
+            .sum::<f64>()
+            / 2.0;
+        if decrement <= 1e-12 * current.value.abs().max(1.0) {
+            break;
+        }
         let mut scale = 1.0;
-        let mut accepted = None;
-        while scale > 1e-10 {
+        let accepted = (0..40).find_map(|_| {
             let trial: Vec<f64> = coef
                 .theta
                 .iter()
                 .zip(&step)
                 .map(|(t, s)| t - scale * s)
                 .collect();
-            let (trial_value, _, _) = objective(coef, patterns, &trial, c, false);
-            if trial_value <= value {
-                accepted = Some((trial, trial_value));
-                break;
-            }
+            let next = evaluate(coef, patterns, &trial, c);
             scale /= 2.0;
-        }
-        let Some((trial, trial_value)) = accepted else {
-            return Ok(());
-        };
+            (next.value <= current.value).then_some((trial, next))
+        });
+        let Some((trial, next)) = accepted else { break };
         coef.theta = trial;
-        if value - trial_value <= 1e-12 * value.abs().max(1.0) {
-            return Ok(());
-        }
+        current = next;
     }
     Ok(())
 }
@@ -499,13 +522,14 @@ struct FittedLogistic {
 
 impl Fitted for FittedLogistic {
     fn predict_proba(&self, columns: &[&EncodedColumn], rows: &[usize]) -> Vec<f64> {
-        let mut x = Vec::new();
-        rows.iter()
-            .flat_map(|&row| {
-                self.design.features(columns, row, &mut x);
-                self.coef.proba(&x, &self.coef.theta)
-            })
-            .collect()
+        let k = self.coef.k;
+        let mut x = SparseRow::default();
+        let mut out = vec![0.0; rows.len() * k];
+        for (&row, p) in rows.iter().zip(out.chunks_exact_mut(k)) {
+            self.design.features(columns, row, &mut x);
+            self.coef.proba(&self.coef.theta, &x.index, &x.value, p);
+        }
+        out
     }
 }
 
@@ -524,12 +548,8 @@ impl Surrogate for LogisticSurrogate {
         check_inputs(self.name(), columns, n_classes, train)?;
         let design = Design::fit(columns, train, self.max_one_hot.max(1));
         let patterns = Patterns::build(&design, columns, target, n_classes, train);
-        let slots = if n_classes == 2 { 1 } else { n_classes };
-        let mut coef = Coefficients {
-            k: n_classes,
-            width: design.width,
-            theta: vec![0.0; slots * (design.width + 1)],
-        };
+        let prior = class_shares(target, n_classes, train);
+        let mut coef = Coefficients::start(n_classes, design.width, &prior);
         newton(&mut coef, &patterns, self.inverse_penalty, self.max_iter).map_err(|reason| {
             SurrogateError {
                 model: self.name(),
