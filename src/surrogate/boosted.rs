@@ -847,3 +847,46 @@ impl Surrogate for BoostedSurrogate {
         Ok(Box::new(model))
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::folds::stratified_folds;
+    use crate::stats::auc::auc_from_scores;
+    use crate::surrogate::cross_fit;
+    use crate::surrogate::testing::{assert_probability_rows, toy};
+
+    #[test]
+    fn few_distinct_values_get_midpoint_thresholds() {
+        // Below max_bins distinct values every value gets its own bin, split
+        // halfway between neighbours (scikit-learn's `_find_binning_thresholds`).
+        assert_eq!(bin_thresholds(&[1.0, 1.0, 2.0, 4.0], 255), vec![1.5, 3.0]);
+    }
+
+    #[test]
+    fn early_stopping_waits_for_n_iterations_without_gain() {
+        // Rule of scikit-learn's `_should_stop`: stop when none of the last n
+        // losses improves on the loss n + 1 iterations back by more than tol.
+        assert!(!should_stop(&[1.0, 0.9, 0.9], 2, 1e-7));
+        assert!(should_stop(&[1.0, 0.9, 0.9, 0.9], 2, 1e-7));
+        assert!(!should_stop(&[1.0, 0.9, 0.9, 0.8], 2, 1e-7));
+    }
+
+    #[test]
+    fn a_categorical_signal_is_found_and_probabilities_sum_to_one() {
+        // Class 1 lives on levels 1 and 4 only: a native categorical split
+        // separates that set in one step, which an ordinal threshold cannot.
+        let (columns, _) = toy(2_000, 2, 7);
+        let target: Vec<u32> = columns[1]
+            .codes
+            .iter()
+            .map(|&c| u32::from(c == 1 || c == 4))
+            .collect();
+        let refs: Vec<&EncodedColumn> = vec![&columns[1]];
+        let folds = stratified_folds(&target, 2, 5, 0);
+        let scores = cross_fit(&BoostedSurrogate::default(), &refs, &target, 2, &folds, 5).unwrap();
+        assert_probability_rows(&scores.proba, 2);
+        let positive: Vec<bool> = target.iter().map(|&t| t == 1).collect();
+        assert!(auc_from_scores(&scores.column(1), &positive).unwrap() > 0.999);
+    }
+}

@@ -181,7 +181,7 @@ impl Surrogate for FrequencySurrogate {
         train: &[usize],
     ) -> Result<Box<dyn Fitted>, SurrogateError> {
         check_inputs(self.name(), columns, n_classes, train)?;
-        if columns.len() > 2 || !(self.smoothing >= 0.0) {
+        if columns.len() > 2 || self.smoothing.is_nan() || self.smoothing < 0.0 {
             return Err(SurrogateError {
                 model: self.name(),
                 reason: "needs one or two columns and a non-negative smoothing".to_string(),
@@ -199,5 +199,105 @@ impl Surrogate for FrequencySurrogate {
             singles,
             pair,
         }))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::FeatureKind;
+    use crate::data::encode::encode_levels;
+    use crate::surrogate::testing::{assert_probability_rows, toy};
+
+    fn column(levels: &[&str]) -> EncodedColumn {
+        encode_levels(
+            "x",
+            FeatureKind::Categorical,
+            levels.iter().map(|s| Some(*s)),
+        )
+    }
+
+    fn fit(columns: &[&EncodedColumn], target: &[u32], train: &[usize]) -> Box<dyn Fitted> {
+        FrequencySurrogate::default()
+            .fit(columns, target, 2, train)
+            .unwrap()
+    }
+
+    #[test]
+    fn cell_shares_follow_the_m_estimate() {
+        // Cestnik (1990), m-estimate p = (n_a + m q_a) / (n + m); by hand with
+        // m = 1, level "a" holding 3 of class 1 and 1 of class 0, prior
+        // q = (4/8, 4/8): p(1 | a) = (3 + 0.5) / 5 = 0.7.
+        let x = column(&["a", "a", "a", "a", "b", "b", "b", "b"]);
+        let target = [1, 1, 1, 0, 0, 0, 0, 1];
+        let train: Vec<usize> = (0..8).collect();
+        let proba = fit(&[&x], &target, &train).predict_proba(&[&x], &[0, 4]);
+        assert!((proba[1] - 0.7).abs() < 1e-15);
+        assert!((proba[3] - 0.3).abs() < 1e-15);
+    }
+
+    #[test]
+    fn level_unseen_in_training_gets_the_training_prior() {
+        let x = column(&["a", "a", "b", "b", "b", "c"]);
+        let target = [1, 0, 0, 0, 0, 1];
+        let train = [0, 1, 2, 3, 4];
+        let proba = fit(&[&x], &target, &train).predict_proba(&[&x], &[5]);
+        assert_eq!(proba, vec![4.0 / 5.0, 1.0 / 5.0]);
+    }
+
+    #[test]
+    fn sparse_pair_cell_backs_off_to_the_combined_singles() {
+        // Naive Bayes: p(a | x, y) ∝ p(a | x) p(a | y) / π_a. The pair (a, d) is
+        // never seen in training, so it gets exactly that combination; the
+        // pair (a, c) seen once moves halfway (m = 1) from it toward its label.
+        let x = column(&["a", "a", "a", "b", "b", "b", "a"]);
+        let y = column(&["c", "c", "c", "d", "d", "c", "d"]);
+        let target = [1, 1, 0, 0, 0, 1, 0];
+        let train = [0, 1, 2, 3, 4, 5];
+        let model = fit(&[&x, &y], &target, &train);
+        let m = 1.0;
+        let prior = [0.5, 0.5];
+        let single = |counts: [f64; 2]| -> Vec<f64> {
+            let n = counts[0] + counts[1];
+            (0..2)
+                .map(|c| (counts[c] + m * prior[c]) / (n + m))
+                .collect()
+        };
+        let (x_a, y_d, y_c) = (single([1.0, 2.0]), single([2.0, 0.0]), single([1.0, 3.0]));
+        let combine = |l: &[f64], r: &[f64]| -> Vec<f64> {
+            let raw: Vec<f64> = (0..2).map(|c| l[c] * r[c] / prior[c]).collect();
+            raw.iter().map(|v| v / (raw[0] + raw[1])).collect()
+        };
+        let unseen = model.predict_proba(&[&x, &y], &[6]);
+        let expected = combine(&x_a, &y_d);
+        assert!(
+            unseen
+                .iter()
+                .zip(&expected)
+                .all(|(a, b)| (a - b).abs() < 1e-12)
+        );
+        let seen = model.predict_proba(&[&x, &y], &[0]);
+        let back_off = combine(&x_a, &y_c);
+        let expected: Vec<f64> = (0..2)
+            .map(|c| ([1.0, 2.0][c] + m * back_off[c]) / (3.0 + m))
+            .collect();
+        assert!(
+            seen.iter()
+                .zip(&expected)
+                .all(|(a, b)| (a - b).abs() < 1e-12)
+        );
+    }
+
+    #[test]
+    fn probabilities_sum_to_one_for_singles_and_pairs() {
+        let (columns, target) = toy(2_000, 3, 5);
+        let train: Vec<usize> = (0..1_500).collect();
+        let rows: Vec<usize> = (1_500..2_000).collect();
+        for cols in [vec![&columns[0]], vec![&columns[0], &columns[1]]] {
+            let model = FrequencySurrogate::default()
+                .fit(&cols, &target, 3, &train)
+                .unwrap();
+            assert_probability_rows(&model.predict_proba(&cols, &rows), 3);
+        }
     }
 }

@@ -452,7 +452,7 @@ fn solve_spd(mut h: Vec<f64>, mut b: Vec<f64>) -> Option<Vec<f64>> {
     let n = b.len();
     for j in 0..n {
         let diag = h[j * n + j] - (0..j).map(|k| h[j * n + k] * h[j * n + k]).sum::<f64>();
-        if !(diag > 0.0) {
+        if diag.is_nan() || diag <= 0.0 {
             return None;
         }
         let d = diag.sqrt();
@@ -557,5 +557,80 @@ impl Surrogate for LogisticSurrogate {
             }
         })?;
         Ok(Box::new(FittedLogistic { design, coef }))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::encode::{encode_integer_coded, encode_levels};
+    use crate::surrogate::testing::{assert_probability_rows, toy};
+
+    #[test]
+    fn one_hot_fit_reproduces_cell_shares_when_counts_dwarf_the_penalty() {
+        // Without penalty, logistic regression on a one-hot (saturated) design
+        // reproduces each level's observed share (McCullagh & Nelder 1989,
+        // "Generalized Linear Models", §4.4: fitted margins equal observed
+        // ones). With ½‖w‖² and 20 000 rows per level the shift is of order
+        // w / n ≈ 1e-4, so 1e-3 bounds it.
+        let levels: Vec<&str> = (0..60_000).map(|i| ["a", "b", "c"][i % 3]).collect();
+        let target: Vec<u32> = (0..60_000)
+            .map(|i| u32::from((i / 3) % 10 < [2, 5, 9][i % 3]))
+            .collect();
+        let x = encode_levels(
+            "x",
+            FeatureKind::Categorical,
+            levels.iter().map(|s| Some(*s)),
+        );
+        let train: Vec<usize> = (0..60_000).collect();
+        let model = LogisticSurrogate::default()
+            .fit(&[&x], &target, 2, &train)
+            .unwrap();
+        let proba = model.predict_proba(&[&x], &[0, 1, 2]);
+        for (level, share) in [0.2, 0.5, 0.9].iter().enumerate() {
+            assert!((proba[2 * level + 1] - share).abs() < 1e-3, "{proba:?}");
+        }
+    }
+
+    #[test]
+    fn median_is_the_middle_value_or_the_mean_of_the_two_middle_values() {
+        // Definition of the sample median (e.g. numpy.median documentation).
+        assert_eq!(median(&mut [3.0, 1.0, 2.0]), 2.0);
+        assert_eq!(median(&mut [4.0, 1.0, 3.0, 2.0]), 2.5);
+    }
+
+    #[test]
+    fn missing_indicator_carries_a_missingness_signal() {
+        // Missing values only in class 1 and no signal in the observed values:
+        // the indicator alone must rank missing rows above observed ones.
+        let values: Vec<f64> = (0..400)
+            .map(|i| {
+                if i % 4 == 3 && i % 8 == 7 {
+                    f64::NAN
+                } else {
+                    f64::from(i % 5)
+                }
+            })
+            .collect();
+        let target: Vec<u32> = (0..400).map(|i| u32::from(i % 4 == 3)).collect();
+        let x = encode_integer_coded("x", values);
+        let train: Vec<usize> = (0..400).collect();
+        let model = LogisticSurrogate::default()
+            .fit(&[&x], &target, 2, &train)
+            .unwrap();
+        let proba = model.predict_proba(&[&x], &[7, 3]);
+        assert!(proba[1] > proba[3], "{proba:?}");
+    }
+
+    #[test]
+    fn multinomial_probabilities_sum_to_one() {
+        let (columns, target) = toy(3_000, 4, 3);
+        let refs: Vec<&EncodedColumn> = columns.iter().collect();
+        let train: Vec<usize> = (0..2_000).collect();
+        let rows: Vec<usize> = (2_000..3_000).collect();
+        let model = LogisticSurrogate::default()
+            .fit(&refs, &target, 4, &train)
+            .unwrap();
+        assert_probability_rows(&model.predict_proba(&refs, &rows), 4);
     }
 }

@@ -138,3 +138,126 @@ fn normalise(values: &mut [f64]) {
         values.iter_mut().for_each(|v| *v /= total);
     }
 }
+
+/// Small seeded data sets shared by the surrogate unit tests.
+#[cfg(test)]
+pub(crate) mod testing {
+    use crate::data::encode::{encode_levels, encode_numeric};
+    use crate::data::{EncodedColumn, FeatureKind};
+    use crate::rng::SplitMix64;
+
+    /// `n` rows: a class in `0..k`, a numeric column shifted by the class (with
+    /// about 5% missing, more often for class 0), and a 6-level categorical
+    /// column loosely tied to the class.
+    pub fn toy(n: usize, k: u32, seed: u64) -> (Vec<EncodedColumn>, Vec<u32>) {
+        let mut rng = SplitMix64::new(seed);
+        let target: Vec<u32> = (0..n).map(|_| rng.below(k as usize) as u32).collect();
+        let numeric: Vec<f64> = target
+            .iter()
+            .map(|&t| {
+                let missing_rate = if t == 0 { 0.08 } else { 0.02 };
+                if rng.next_f64() < missing_rate {
+                    f64::NAN
+                } else {
+                    rng.normal() + 0.7 * f64::from(t)
+                }
+            })
+            .collect();
+        let levels: Vec<String> = target
+            .iter()
+            .map(|&t| {
+                let shifted = rng.below(6) + usize::from(rng.next_f64() < 0.3) * t as usize;
+                format!("level{}", shifted % 6)
+            })
+            .collect();
+        let columns = vec![
+            encode_numeric("numeric", numeric, 32),
+            encode_levels(
+                "categorical",
+                FeatureKind::Categorical,
+                levels.iter().map(|s| Some(s.as_str())),
+            ),
+        ];
+        (columns, target)
+    }
+
+    /// Asserts every row of `proba` (row-major, `k` per row) is a probability vector.
+    pub fn assert_probability_rows(proba: &[f64], k: usize) {
+        for row in proba.chunks_exact(k) {
+            assert!(row.iter().all(|p| (0.0..=1.0).contains(p)), "{row:?}");
+            assert!((row.iter().sum::<f64>() - 1.0).abs() < 1e-12, "{row:?}");
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::testing::{assert_probability_rows, toy};
+    use super::*;
+    use crate::data::folds::stratified_folds;
+
+    fn all_models() -> Vec<Box<dyn Surrogate>> {
+        vec![
+            Box::new(FrequencySurrogate::default()),
+            Box::new(LogisticSurrogate::default()),
+            Box::new(TreeSurrogate::default()),
+            Box::new(BoostedSurrogate::default()),
+        ]
+    }
+
+    fn scores_with_threads(model: &dyn Surrogate, threads: usize) -> Scores {
+        // 12 500 rows: the boosted model's 10 000 training rows (4 of 5 folds)
+        // are exceeded, so its seeded early-stopping split is exercised too.
+        let (columns, target) = toy(12_500, 3, 11);
+        let refs: Vec<&EncodedColumn> = if model.name() == "frequency" {
+            vec![&columns[1]]
+        } else {
+            columns.iter().collect()
+        };
+        let folds = stratified_folds(&target, 3, 5, 0);
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap();
+        pool.install(|| cross_fit(model, &refs, &target, 3, &folds, 5).unwrap())
+    }
+
+    #[test]
+    fn every_surrogate_is_bit_identical_at_one_and_four_threads() {
+        for model in all_models() {
+            let one = scores_with_threads(model.as_ref(), 1);
+            let four = scores_with_threads(model.as_ref(), 4);
+            let bits = |s: &Scores| s.proba.iter().map(|p| p.to_bits()).collect::<Vec<_>>();
+            assert_eq!(bits(&one), bits(&four), "{}", model.name());
+            assert_probability_rows(&one.proba, 3);
+        }
+    }
+
+    #[test]
+    fn cross_fit_scores_each_row_with_a_model_not_fitted_on_it() {
+        // A frequency table over a unique-per-row identifier only knows the
+        // prior for rows it has not seen: every out-of-fold score must then be
+        // the training folds' class share, never the row's own label.
+        let target: Vec<u32> = (0..50).map(|i| u32::from(i % 5 == 0)).collect();
+        let ids: Vec<String> = (0..50).map(|i| format!("id{i}")).collect();
+        let column = crate::data::encode::encode_levels(
+            "id",
+            crate::data::FeatureKind::IdentifierLike,
+            ids.iter().map(|s| Some(s.as_str())),
+        );
+        let folds = stratified_folds(&target, 2, 5, 0);
+        let scores = cross_fit(
+            &FrequencySurrogate::default(),
+            &[&column],
+            &target,
+            2,
+            &folds,
+            5,
+        )
+        .unwrap();
+        // Stratified folds of 50 rows with 10 positives: every training part has 8 of 40.
+        for p in scores.column(1) {
+            assert!((p - 8.0 / 40.0).abs() < 1e-12, "{p}");
+        }
+    }
+}

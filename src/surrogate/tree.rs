@@ -52,6 +52,8 @@ struct Ranked {
     rank: Vec<u32>,
     /// Distinct training values, ascending.
     values: Vec<f64>,
+    /// Training rows by ascending rank (ties in row order), missing rows last.
+    order: Vec<u32>,
 }
 
 impl Ranked {
@@ -83,12 +85,30 @@ impl Ranked {
             rank_of_code[code] = rank as u32;
         }
         let mut rank = vec![MISSING; column.codes.len()];
+        let mut per_rank: Vec<u32> = vec![0; present.len() + 1];
         for &row in train {
-            rank[row] = rank_of_code[column.codes[row] as usize];
+            let r = rank_of_code[column.codes[row] as usize];
+            rank[row] = r;
+            per_rank[(r as usize).min(present.len())] += 1;
+        }
+        let mut next: Vec<u32> = per_rank
+            .iter()
+            .scan(0, |sum, &count| {
+                let start = *sum;
+                *sum += count;
+                Some(start)
+            })
+            .collect();
+        let mut order = vec![0u32; train.len()];
+        for &row in train {
+            let slot = &mut next[(rank[row] as usize).min(present.len())];
+            order[*slot as usize] = row as u32;
+            *slot += 1;
         }
         Self {
             rank,
             values: present.into_iter().map(|(v, _)| v).collect(),
+            order,
         }
     }
 
@@ -108,84 +128,18 @@ impl Ranked {
             }
             rank[row] = (values.len() - 1) as u32;
         }
-        Self { rank, values }
-    }
-}
-
-/// Class counts of a node's rows per distinct value present, ascending, plus the missing rows.
-struct NodeHistogram {
-    ranks: Vec<u32>,
-    /// `ranks.len() × k` class counts.
-    counts: Vec<f64>,
-    missing: Vec<f64>,
-}
-
-impl NodeHistogram {
-    fn new(ranked: &Ranked, rows: &[usize], target: &[u32], k: usize) -> Self {
-        let mut missing = vec![0.0; k];
-        let mut keys: Vec<u64> = Vec::with_capacity(rows.len());
-        for &row in rows {
-            let r = ranked.rank[row];
-            if r == MISSING {
-                missing[target[row] as usize] += 1.0;
-            } else {
-                keys.push(u64::from(r) * k as u64 + u64::from(target[row]));
-            }
-        }
-        let (ranks, counts) = if keys.len() * 8 < ranked.values.len() {
-            run_lengths_by_sort(keys, k)
-        } else {
-            run_lengths_dense(&keys, k, ranked.values.len())
-        };
+        let missing_rows = train.iter().filter(|&&row| rank[row] == MISSING);
+        let order = by_value
+            .iter()
+            .map(|&(_, row)| row)
+            .chain(missing_rows.copied())
+            .map(|row| row as u32)
+            .collect();
         Self {
-            ranks,
-            counts,
-            missing,
+            rank,
+            values,
+            order,
         }
-    }
-}
-
-/// Distinct ranks and class counts of `rank·k + class` keys, for small nodes.
-fn run_lengths_by_sort(mut keys: Vec<u64>, k: usize) -> (Vec<u32>, Vec<f64>) {
-    keys.sort_unstable();
-    let mut ranks: Vec<u32> = Vec::new();
-    let mut counts: Vec<f64> = Vec::new();
-    for key in keys {
-        let rank = (key / k as u64) as u32;
-        if ranks.last() != Some(&rank) {
-            ranks.push(rank);
-            counts.extend(std::iter::repeat_n(0.0, k));
-        }
-        let base = counts.len() - k;
-        counts[base + (key % k as u64) as usize] += 1.0;
-    }
-    (ranks, counts)
-}
-
-/// Same as [`run_lengths_by_sort`] through a dense table, for large nodes.
-fn run_lengths_dense(keys: &[u64], k: usize, n_ranks: usize) -> (Vec<u32>, Vec<f64>) {
-    let mut table = vec![0.0; n_ranks * k];
-    for &key in keys {
-        table[key as usize] += 1.0;
-    }
-    let mut ranks = Vec::new();
-    let mut counts = Vec::new();
-    for (rank, cell) in table.chunks_exact(k).enumerate() {
-        if cell.iter().any(|&c| c > 0.0) {
-            ranks.push(rank as u32);
-            counts.extend_from_slice(cell);
-        }
-    }
-    (ranks, counts)
-}
-
-/// Σ_k n_k² / n: the Gini proxy (larger is purer); n·(1 − Gini) = this.
-fn gini_proxy(counts: &[f64]) -> f64 {
-    let n: f64 = counts.iter().sum();
-    if n <= 0.0 {
-        0.0
-    } else {
-        counts.iter().map(|c| c * c).sum::<f64>() / n
     }
 }
 
@@ -227,33 +181,39 @@ struct Grower<'a> {
     target: &'a [u32],
     k: usize,
     nodes: Vec<Node>,
+    /// Scratch: the side of each row at the split being applied.
+    goes_left: Vec<bool>,
 }
 
 impl Grower<'_> {
-    fn class_counts(&self, rows: &[usize]) -> Vec<f64> {
+    fn class_counts(&self, rows: &[u32]) -> Vec<f64> {
         let mut counts = vec![0.0; self.k];
         for &row in rows {
-            counts[self.target[row] as usize] += 1.0;
+            counts[self.target[row as usize] as usize] += 1.0;
         }
         counts
     }
 
-    /// Best split of `rows` on `feature`: thresholds with missing right, then
-    /// with missing left, then observed-vs-missing; a later one wins only if strictly better.
-    fn best_on_feature(&self, feature: usize, rows: &[usize], best: &mut Option<Split>) {
+    /// Best split of a node on `feature` by the Gini proxy Σ_k n_k²/n summed over
+    /// both children (n·(1 − Gini) per child; larger is purer), given the node's rows sorted by that
+    /// feature: thresholds with missing right, then with missing left, then
+    /// observed-vs-missing; a later one wins only if strictly better.
+    fn best_on_feature(&self, feature: usize, sorted: &[u32], best: &mut Option<Split>) {
         let ranked = &self.ranked[feature];
-        let hist = NodeHistogram::new(ranked, rows, self.target, self.k);
         let k = self.k;
-        let observed: Vec<f64> = (0..k)
-            .map(|c| hist.counts.iter().skip(c).step_by(k).sum())
-            .collect();
-        let has_missing = hist.missing.iter().any(|&c| c > 0.0);
+        let rank = |i: usize| ranked.rank[sorted[i] as usize];
+        let observed_len = sorted.partition_point(|&row| ranked.rank[row as usize] != MISSING);
+        let (observed, missing) = (
+            self.class_counts(&sorted[..observed_len]),
+            self.class_counts(&sorted[observed_len..]),
+        );
+        let has_missing = observed_len < sorted.len();
         let min_leaf = self.params.min_samples_leaf.max(1) as f64;
+        let total: Vec<f64> = observed.iter().zip(&missing).map(|(o, m)| o + m).collect();
+        let n_total: f64 = total.iter().sum();
         let mut consider = |left: &[f64], missing_left: bool, threshold: f64| {
-            let right: Vec<f64> = (0..k)
-                .map(|c| observed[c] + hist.missing[c] - left[c])
-                .collect();
-            let (n_left, n_right): (f64, f64) = (left.iter().sum(), right.iter().sum());
+            let n_left: f64 = left.iter().sum();
+            let n_right = n_total - n_left;
             if n_left < min_leaf || n_right < min_leaf {
                 return;
             }
@@ -263,7 +223,8 @@ impl Grower<'_> {
             } else {
                 n_left > n_right
             };
-            let score = gini_proxy(left) + gini_proxy(&right);
+            let squares = |f: &dyn Fn(usize) -> f64| (0..k).map(|c| f(c) * f(c)).sum::<f64>();
+            let score = squares(&|c| left[c]) / n_left + squares(&|c| total[c] - left[c]) / n_right;
             if best.is_none_or(|b| score > b.score) {
                 *best = Some(Split {
                     feature,
@@ -275,34 +236,38 @@ impl Grower<'_> {
         };
         for missing_left in [false, true].into_iter().take(1 + usize::from(has_missing)) {
             let mut left: Vec<f64> = if missing_left {
-                hist.missing.clone()
+                missing.clone()
             } else {
                 vec![0.0; k]
             };
-            for i in 0..hist.ranks.len().saturating_sub(1) {
-                left.iter_mut()
-                    .zip(&hist.counts[i * k..(i + 1) * k])
-                    .for_each(|(l, c)| *l += c);
-                let low = ranked.values[hist.ranks[i] as usize];
-                let high = ranked.values[hist.ranks[i + 1] as usize];
-                consider(&left, missing_left, midpoint(low, high));
+            for i in 0..observed_len.saturating_sub(1) {
+                left[self.target[sorted[i] as usize] as usize] += 1.0;
+                let (low, high) = (rank(i), rank(i + 1));
+                if low != high {
+                    let threshold =
+                        midpoint(ranked.values[low as usize], ranked.values[high as usize]);
+                    consider(&left, missing_left, threshold);
+                }
             }
         }
-        if has_missing && !hist.ranks.is_empty() {
+        if has_missing && observed_len > 0 {
             consider(&observed, false, f64::INFINITY);
         }
     }
 
-    fn grow(&mut self, rows: &[usize], depth: usize) -> usize {
-        let counts = self.class_counts(rows);
-        let n = rows.len();
+    /// Grows the subtree of a node whose rows are given sorted by each feature.
+    fn grow(&mut self, sorted: Vec<Vec<u32>>, depth: usize) -> usize {
+        let counts = self.class_counts(&sorted[0]);
+        let n = sorted[0].len();
         let pure = counts.iter().filter(|&&c| c > 0.0).count() <= 1;
         let too_small = n < 2 || n < 2 * self.params.min_samples_leaf;
         let split = if depth >= self.params.max_depth || pure || too_small {
             None
         } else {
             let mut best = None;
-            (0..self.ranked.len()).for_each(|f| self.best_on_feature(f, rows, &mut best));
+            for (feature, rows) in sorted.iter().enumerate() {
+                self.best_on_feature(feature, rows, &mut best);
+            }
             best
         };
         let Some(split) = split else {
@@ -310,11 +275,11 @@ impl Grower<'_> {
                 .push(Node::Leaf(counts.iter().map(|c| c / n as f64).collect()));
             return self.nodes.len() - 1;
         };
-        let (left_rows, right_rows) = self.partition(rows, &split);
+        let (left_rows, right_rows) = self.partition(sorted, &split);
         let id = self.nodes.len();
         self.nodes.push(Node::Leaf(Vec::new()));
-        let left = self.grow(&left_rows, depth + 1);
-        let right = self.grow(&right_rows, depth + 1);
+        let left = self.grow(left_rows, depth + 1);
+        let right = self.grow(right_rows, depth + 1);
         self.nodes[id] = Node::Branch {
             feature: split.feature,
             threshold: split.threshold,
@@ -325,16 +290,28 @@ impl Grower<'_> {
         id
     }
 
-    fn partition(&self, rows: &[usize], split: &Split) -> (Vec<usize>, Vec<usize>) {
+    /// Stable partition of every feature's sorted rows by the split.
+    fn partition(
+        &mut self,
+        sorted: Vec<Vec<u32>>,
+        split: &Split,
+    ) -> (Vec<Vec<u32>>, Vec<Vec<u32>>) {
         let ranked = &self.ranked[split.feature];
-        rows.iter().partition(|&&row| {
-            let r = ranked.rank[row];
-            if r == MISSING {
+        for &row in &sorted[0] {
+            let r = ranked.rank[row as usize];
+            self.goes_left[row as usize] = if r == MISSING {
                 split.missing_left
             } else {
                 ranked.values[r as usize] <= split.threshold
-            }
-        })
+            };
+        }
+        sorted
+            .into_iter()
+            .map(|rows| {
+                rows.into_iter()
+                    .partition(|&row| self.goes_left[row as usize])
+            })
+            .unzip()
     }
 }
 
@@ -391,16 +368,75 @@ impl Surrogate for TreeSurrogate {
         train: &[usize],
     ) -> Result<Box<dyn Fitted>, SurrogateError> {
         check_inputs(self.name(), columns, n_classes, train)?;
+        let ranked: Vec<Ranked> = columns.iter().map(|c| Ranked::new(c, train)).collect();
+        let sorted = ranked.iter().map(|r| r.order.clone()).collect();
         let mut grower = Grower {
             params: *self,
-            ranked: columns.iter().map(|c| Ranked::new(c, train)).collect(),
+            ranked,
             target,
             k: n_classes,
             nodes: Vec::new(),
+            goes_left: vec![false; target.len()],
         };
-        grower.grow(train, 0);
+        grower.grow(sorted, 0);
         Ok(Box::new(FittedTree {
             nodes: grower.nodes,
         }))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::encode::encode_numeric;
+    use crate::data::folds::stratified_folds;
+    use crate::stats::auc::auc_from_scores;
+    use crate::surrogate::cross_fit;
+    use crate::surrogate::testing::{assert_probability_rows, toy};
+
+    #[test]
+    fn separable_toy_gets_out_of_fold_auc_one() {
+        // Class 0 below 50, class 1 above 100: any threshold in the gap
+        // separates the classes, so every held-out row lands in a pure leaf of
+        // its class and the AUC is 1 by definition.
+        let x: Vec<f64> = (0..100).map(|i| f64::from(i + 50 * (i / 50))).collect();
+        let target: Vec<u32> = x.iter().map(|&v| u32::from(v >= 100.0)).collect();
+        let column = encode_numeric("x", x, 10);
+        let folds = stratified_folds(&target, 2, 5, 1);
+        let scores =
+            cross_fit(&TreeSurrogate::default(), &[&column], &target, 2, &folds, 5).unwrap();
+        let positive: Vec<bool> = target.iter().map(|&t| t == 1).collect();
+        assert_eq!(auc_from_scores(&scores.column(1), &positive), Some(1.0));
+    }
+
+    #[test]
+    fn missing_values_follow_the_class_they_resemble() {
+        // Missing rows are all class 1, which otherwise holds the high values:
+        // the split must send them right, with the high values.
+        let x: Vec<f64> = (0..40)
+            .map(|i| if i >= 36 { f64::NAN } else { f64::from(i) })
+            .collect();
+        let target: Vec<u32> = (0..40).map(|i| u32::from(i >= 18)).collect();
+        let column = encode_numeric("x", x, 10);
+        let train: Vec<usize> = (0..40).collect();
+        let tree = TreeSurrogate {
+            max_depth: 1,
+            min_samples_leaf: 1,
+        };
+        let model = tree.fit(&[&column], &target, 2, &train).unwrap();
+        assert_eq!(model.predict_proba(&[&column], &[37]), vec![0.0, 1.0]);
+        assert_eq!(model.predict_proba(&[&column], &[0]), vec![1.0, 0.0]);
+    }
+
+    #[test]
+    fn leaf_probabilities_are_class_shares() {
+        let (columns, target) = toy(3_000, 3, 2);
+        let refs: Vec<&EncodedColumn> = columns.iter().collect();
+        let train: Vec<usize> = (0..2_000).collect();
+        let rows: Vec<usize> = (2_000..3_000).collect();
+        let model = TreeSurrogate::default()
+            .fit(&refs, &target, 3, &train)
+            .unwrap();
+        assert_probability_rows(&model.predict_proba(&refs, &rows), 3);
     }
 }
