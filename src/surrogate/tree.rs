@@ -1,0 +1,442 @@
+//! A shallow exact classification tree (Gini), grown depth-first.
+//!
+//! Splits follow CART (Breiman et al. 1984, "Classification and Regression
+//! Trees", ch. 4): at each node the threshold maximising the Gini impurity
+//! decrease, placed halfway between consecutive distinct training values.
+//! Numeric columns split on raw values; categorical columns on their ordinal
+//! codes with the missing level ordered first (value −1). Missing raw values
+//! are tried on both sides of every threshold and sent to the better one, and
+//! an "observed vs missing" split is also tried; a node that saw no missing
+//! value in training sends them to its larger child. Each node's candidate
+//! values are scanned as a sorted run of distinct values with class counts,
+//! so the search is exact, not binned.
+
+use super::{Fitted, Surrogate, SurrogateError, check_inputs};
+use crate::data::{EncodedColumn, FeatureKind};
+
+/// Rank given to a missing raw value.
+const MISSING: u32 = u32::MAX;
+
+/// The tree surrogate's parameters.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct TreeSurrogate {
+    /// Maximum depth (root = depth 0); 4 keeps the tree readable and the fit fast.
+    pub max_depth: usize,
+    /// Fewest training rows a leaf may hold.
+    pub min_samples_leaf: usize,
+}
+
+impl Default for TreeSurrogate {
+    fn default() -> Self {
+        Self {
+            max_depth: 4,
+            min_samples_leaf: 1,
+        }
+    }
+}
+
+/// The value a tree sees for `row`: the raw number (`NaN` = missing) or the
+/// ordinal code of a categorical column, with its missing level as −1.
+#[must_use]
+pub fn ordinal_value(column: &EncodedColumn, row: usize) -> f64 {
+    match &column.raw {
+        Some(raw) => raw[row],
+        None if Some(column.codes[row]) == column.missing_code => -1.0,
+        None => f64::from(column.codes[row]),
+    }
+}
+
+/// One column's training values as ranks into its sorted distinct values.
+struct Ranked {
+    /// Rank per row of the whole table (only training rows are filled); `MISSING` for NaN.
+    rank: Vec<u32>,
+    /// Distinct training values, ascending.
+    values: Vec<f64>,
+    /// Training rows by ascending rank (ties in row order), missing rows last.
+    order: Vec<u32>,
+}
+
+impl Ranked {
+    fn new(column: &EncodedColumn, train: &[usize]) -> Self {
+        if column.raw.is_none() || column.kind == FeatureKind::IntegerCoded {
+            Self::from_codes(column, train)
+        } else {
+            Self::from_sorted_raw(column, train)
+        }
+    }
+
+    /// Codes already ordered by value (categoricals; integer-coded columns), O(N).
+    fn from_codes(column: &EncodedColumn, train: &[usize]) -> Self {
+        let mut value_of: Vec<Option<f64>> = vec![None; column.n_levels as usize];
+        for &row in train {
+            let code = column.codes[row] as usize;
+            if value_of[code].is_none() {
+                value_of[code] = Some(ordinal_value(column, row));
+            }
+        }
+        let mut present: Vec<(f64, usize)> = value_of
+            .iter()
+            .enumerate()
+            .filter_map(|(code, v)| v.filter(|x| !x.is_nan()).map(|x| (x, code)))
+            .collect();
+        present.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let mut rank_of_code = vec![MISSING; column.n_levels as usize];
+        for (rank, &(_, code)) in present.iter().enumerate() {
+            rank_of_code[code] = rank as u32;
+        }
+        let mut rank = vec![MISSING; column.codes.len()];
+        let mut per_rank: Vec<u32> = vec![0; present.len() + 1];
+        for &row in train {
+            let r = rank_of_code[column.codes[row] as usize];
+            rank[row] = r;
+            per_rank[(r as usize).min(present.len())] += 1;
+        }
+        let mut next: Vec<u32> = per_rank
+            .iter()
+            .scan(0, |sum, &count| {
+                let start = *sum;
+                *sum += count;
+                Some(start)
+            })
+            .collect();
+        let mut order = vec![0u32; train.len()];
+        for &row in train {
+            let slot = &mut next[(rank[row] as usize).min(present.len())];
+            order[*slot as usize] = row as u32;
+            *slot += 1;
+        }
+        Self {
+            rank,
+            values: present.into_iter().map(|(v, _)| v).collect(),
+            order,
+        }
+    }
+
+    /// Continuous raw values: one sort of the training rows, O(N log N).
+    fn from_sorted_raw(column: &EncodedColumn, train: &[usize]) -> Self {
+        let mut by_value: Vec<(f64, usize)> = train
+            .iter()
+            .map(|&row| (ordinal_value(column, row), row))
+            .filter(|(v, _)| !v.is_nan())
+            .collect();
+        by_value.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        let mut rank = vec![MISSING; column.codes.len()];
+        let mut values: Vec<f64> = Vec::new();
+        for &(v, row) in &by_value {
+            if values.last() != Some(&v) {
+                values.push(v);
+            }
+            rank[row] = (values.len() - 1) as u32;
+        }
+        let missing_rows = train.iter().filter(|&&row| rank[row] == MISSING);
+        let order = by_value
+            .iter()
+            .map(|&(_, row)| row)
+            .chain(missing_rows.copied())
+            .map(|row| row as u32)
+            .collect();
+        Self {
+            rank,
+            values,
+            order,
+        }
+    }
+}
+
+/// A candidate split of one node.
+#[derive(Debug, Clone, Copy)]
+struct Split {
+    feature: usize,
+    threshold: f64,
+    missing_left: bool,
+    score: f64,
+}
+
+/// A node of the fitted tree.
+#[derive(Debug, Clone)]
+enum Node {
+    Leaf(Vec<f64>),
+    Branch {
+        feature: usize,
+        threshold: f64,
+        missing_left: bool,
+        left: usize,
+        right: usize,
+    },
+}
+
+/// Halfway between two consecutive values, kept below the upper one (as CART does).
+fn midpoint(low: f64, high: f64) -> f64 {
+    let mid = low / 2.0 + high / 2.0;
+    if mid == high || !mid.is_finite() {
+        low
+    } else {
+        mid
+    }
+}
+
+struct Grower<'a> {
+    params: TreeSurrogate,
+    ranked: Vec<Ranked>,
+    target: &'a [u32],
+    k: usize,
+    nodes: Vec<Node>,
+    /// Scratch: the side of each row at the split being applied.
+    goes_left: Vec<bool>,
+}
+
+impl Grower<'_> {
+    fn class_counts(&self, rows: &[u32]) -> Vec<f64> {
+        let mut counts = vec![0.0; self.k];
+        for &row in rows {
+            counts[self.target[row as usize] as usize] += 1.0;
+        }
+        counts
+    }
+
+    /// Best split of a node on `feature` by the Gini proxy Σ_k n_k²/n summed over
+    /// both children (n·(1 − Gini) per child; larger is purer), given the node's rows sorted by that
+    /// feature: thresholds with missing right, then with missing left, then
+    /// observed-vs-missing; a later one wins only if strictly better.
+    fn best_on_feature(&self, feature: usize, sorted: &[u32], best: &mut Option<Split>) {
+        let ranked = &self.ranked[feature];
+        let k = self.k;
+        let rank = |i: usize| ranked.rank[sorted[i] as usize];
+        let observed_len = sorted.partition_point(|&row| ranked.rank[row as usize] != MISSING);
+        let (observed, missing) = (
+            self.class_counts(&sorted[..observed_len]),
+            self.class_counts(&sorted[observed_len..]),
+        );
+        let has_missing = observed_len < sorted.len();
+        let min_leaf = self.params.min_samples_leaf.max(1) as f64;
+        let total: Vec<f64> = observed.iter().zip(&missing).map(|(o, m)| o + m).collect();
+        let n_total: f64 = total.iter().sum();
+        let mut consider = |left: &[f64], missing_left: bool, threshold: f64| {
+            let n_left: f64 = left.iter().sum();
+            let n_right = n_total - n_left;
+            if n_left < min_leaf || n_right < min_leaf {
+                return;
+            }
+            // A node that saw no missing value sends them to its larger child.
+            let missing_left = if has_missing {
+                missing_left
+            } else {
+                n_left > n_right
+            };
+            let squares = |f: &dyn Fn(usize) -> f64| (0..k).map(|c| f(c) * f(c)).sum::<f64>();
+            let score = squares(&|c| left[c]) / n_left + squares(&|c| total[c] - left[c]) / n_right;
+            if best.is_none_or(|b| score > b.score) {
+                *best = Some(Split {
+                    feature,
+                    threshold,
+                    missing_left,
+                    score,
+                });
+            }
+        };
+        for missing_left in [false, true].into_iter().take(1 + usize::from(has_missing)) {
+            let mut left: Vec<f64> = if missing_left {
+                missing.clone()
+            } else {
+                vec![0.0; k]
+            };
+            for i in 0..observed_len.saturating_sub(1) {
+                left[self.target[sorted[i] as usize] as usize] += 1.0;
+                let (low, high) = (rank(i), rank(i + 1));
+                if low != high {
+                    let threshold =
+                        midpoint(ranked.values[low as usize], ranked.values[high as usize]);
+                    consider(&left, missing_left, threshold);
+                }
+            }
+        }
+        if has_missing && observed_len > 0 {
+            consider(&observed, false, f64::INFINITY);
+        }
+    }
+
+    /// Grows the subtree of a node whose rows are given sorted by each feature.
+    fn grow(&mut self, sorted: Vec<Vec<u32>>, depth: usize) -> usize {
+        let counts = self.class_counts(&sorted[0]);
+        let n = sorted[0].len();
+        let pure = counts.iter().filter(|&&c| c > 0.0).count() <= 1;
+        let too_small = n < 2 || n < 2 * self.params.min_samples_leaf;
+        let split = if depth >= self.params.max_depth || pure || too_small {
+            None
+        } else {
+            let mut best = None;
+            for (feature, rows) in sorted.iter().enumerate() {
+                self.best_on_feature(feature, rows, &mut best);
+            }
+            best
+        };
+        let Some(split) = split else {
+            self.nodes
+                .push(Node::Leaf(counts.iter().map(|c| c / n as f64).collect()));
+            return self.nodes.len() - 1;
+        };
+        let (left_rows, right_rows) = self.partition(sorted, &split);
+        let id = self.nodes.len();
+        self.nodes.push(Node::Leaf(Vec::new()));
+        let left = self.grow(left_rows, depth + 1);
+        let right = self.grow(right_rows, depth + 1);
+        self.nodes[id] = Node::Branch {
+            feature: split.feature,
+            threshold: split.threshold,
+            missing_left: split.missing_left,
+            left,
+            right,
+        };
+        id
+    }
+
+    /// Stable partition of every feature's sorted rows by the split.
+    fn partition(
+        &mut self,
+        sorted: Vec<Vec<u32>>,
+        split: &Split,
+    ) -> (Vec<Vec<u32>>, Vec<Vec<u32>>) {
+        let ranked = &self.ranked[split.feature];
+        for &row in &sorted[0] {
+            let r = ranked.rank[row as usize];
+            self.goes_left[row as usize] = if r == MISSING {
+                split.missing_left
+            } else {
+                ranked.values[r as usize] <= split.threshold
+            };
+        }
+        sorted
+            .into_iter()
+            .map(|rows| {
+                rows.into_iter()
+                    .partition(|&row| self.goes_left[row as usize])
+            })
+            .unzip()
+    }
+}
+
+/// A fitted tree.
+struct FittedTree {
+    nodes: Vec<Node>,
+}
+
+impl FittedTree {
+    fn leaf_of(&self, columns: &[&EncodedColumn], row: usize) -> &[f64] {
+        let mut id = 0;
+        loop {
+            match &self.nodes[id] {
+                Node::Leaf(proba) => return proba,
+                Node::Branch {
+                    feature,
+                    threshold,
+                    missing_left,
+                    left,
+                    right,
+                } => {
+                    let x = ordinal_value(columns[*feature], row);
+                    id = if x.is_nan() {
+                        if *missing_left { *left } else { *right }
+                    } else if x <= *threshold {
+                        *left
+                    } else {
+                        *right
+                    };
+                }
+            }
+        }
+    }
+}
+
+impl Fitted for FittedTree {
+    fn predict_proba(&self, columns: &[&EncodedColumn], rows: &[usize]) -> Vec<f64> {
+        rows.iter()
+            .flat_map(|&row| self.leaf_of(columns, row).iter().copied())
+            .collect()
+    }
+}
+
+impl Surrogate for TreeSurrogate {
+    fn name(&self) -> &'static str {
+        "tree"
+    }
+
+    fn fit(
+        &self,
+        columns: &[&EncodedColumn],
+        target: &[u32],
+        n_classes: usize,
+        train: &[usize],
+    ) -> Result<Box<dyn Fitted>, SurrogateError> {
+        check_inputs(self.name(), columns, n_classes, train)?;
+        let ranked: Vec<Ranked> = columns.iter().map(|c| Ranked::new(c, train)).collect();
+        let sorted = ranked.iter().map(|r| r.order.clone()).collect();
+        let mut grower = Grower {
+            params: *self,
+            ranked,
+            target,
+            k: n_classes,
+            nodes: Vec::new(),
+            goes_left: vec![false; target.len()],
+        };
+        grower.grow(sorted, 0);
+        Ok(Box::new(FittedTree {
+            nodes: grower.nodes,
+        }))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::encode::encode_numeric;
+    use crate::data::folds::stratified_folds;
+    use crate::stats::auc::auc_from_scores;
+    use crate::surrogate::cross_fit;
+    use crate::surrogate::testing::{assert_probability_rows, toy};
+
+    #[test]
+    fn separable_toy_gets_out_of_fold_auc_one() {
+        // Class 0 below 50, class 1 above 100: any threshold in the gap
+        // separates the classes, so every held-out row lands in a pure leaf of
+        // its class and the AUC is 1 by definition.
+        let x: Vec<f64> = (0..100).map(|i| f64::from(i + 50 * (i / 50))).collect();
+        let target: Vec<u32> = x.iter().map(|&v| u32::from(v >= 100.0)).collect();
+        let column = encode_numeric("x", x, 10);
+        let folds = stratified_folds(&target, 2, 5, 1);
+        let scores =
+            cross_fit(&TreeSurrogate::default(), &[&column], &target, 2, &folds, 5).unwrap();
+        let positive: Vec<bool> = target.iter().map(|&t| t == 1).collect();
+        assert_eq!(auc_from_scores(&scores.column(1), &positive), Some(1.0));
+    }
+
+    #[test]
+    fn missing_values_follow_the_class_they_resemble() {
+        // Missing rows are all class 1, which otherwise holds the high values:
+        // the split must send them right, with the high values.
+        let x: Vec<f64> = (0..40)
+            .map(|i| if i >= 36 { f64::NAN } else { f64::from(i) })
+            .collect();
+        let target: Vec<u32> = (0..40).map(|i| u32::from(i >= 18)).collect();
+        let column = encode_numeric("x", x, 10);
+        let train: Vec<usize> = (0..40).collect();
+        let tree = TreeSurrogate {
+            max_depth: 1,
+            min_samples_leaf: 1,
+        };
+        let model = tree.fit(&[&column], &target, 2, &train).unwrap();
+        assert_eq!(model.predict_proba(&[&column], &[37]), vec![0.0, 1.0]);
+        assert_eq!(model.predict_proba(&[&column], &[0]), vec![1.0, 0.0]);
+    }
+
+    #[test]
+    fn leaf_probabilities_are_class_shares() {
+        let (columns, target) = toy(3_000, 3, 2);
+        let refs: Vec<&EncodedColumn> = columns.iter().collect();
+        let train: Vec<usize> = (0..2_000).collect();
+        let rows: Vec<usize> = (2_000..3_000).collect();
+        let model = TreeSurrogate::default()
+            .fit(&refs, &target, 3, &train)
+            .unwrap();
+        assert_probability_rows(&model.predict_proba(&refs, &rows), 3);
+    }
+}
