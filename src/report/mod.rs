@@ -2,7 +2,12 @@
 //! [`Report`] into bytes; they compute no statistics.
 
 pub mod contract;
+pub mod format;
 pub mod json;
+pub mod markdown;
+#[cfg(test)]
+mod sample;
+pub mod terminal;
 
 pub use contract::*;
 
