@@ -3,10 +3,12 @@
 
 pub mod contract;
 pub mod format;
+pub mod html;
 pub mod json;
 pub mod markdown;
 #[cfg(test)]
 mod sample;
+pub mod svg;
 pub mod terminal;
 
 pub use contract::*;
