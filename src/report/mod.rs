@@ -3,7 +3,14 @@
 
 pub mod contract;
 pub mod explanation;
+pub mod format;
+pub mod html;
 pub mod json;
+pub mod markdown;
+#[cfg(test)]
+mod sample;
+pub mod svg;
+pub mod terminal;
 
 pub use contract::*;
 
