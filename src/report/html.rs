@@ -475,7 +475,8 @@ fn added_source_section(added: &AddedSource) -> String {
                 interval(&e.auc_without),
                 interval(&e.auc_with),
                 format::signed(e.difference, 3),
-                format!("{:.4}", e.p_value),
+                e.p_value
+                    .map_or_else(|| "n/a".to_string(), |p| format!("{p:.4}")),
             ]
         })
         .collect();

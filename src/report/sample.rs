@@ -280,7 +280,7 @@ pub fn sample_report() -> Report {
                     auc_se: 0.005,
                 },
                 difference: 0.013,
-                p_value: 0.03,
+                p_value: Some(0.03),
             }],
         }),
         policy: Some(PolicyOutcome {

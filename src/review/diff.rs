@@ -283,7 +283,6 @@ fn combined_se(old: Option<f64>, new: Option<f64>) -> Option<f64> {
     (se.is_finite() && se > 0.0).then_some(se)
 }
 
-
 /// Compares two reports: per protected attribute, features added and removed,
 /// flag changes and AUC changes tested at `alpha` (two-sided), plus the
 /// dataset and settings context. Pass [`DEFAULT_ALPHA`] unless there is a reason.
@@ -771,4 +770,3 @@ fn render_protected_markdown(out: &mut String, p: &ProtectedDiff, alpha: f64) {
         );
     }
 }
-

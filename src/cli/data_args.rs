@@ -1,0 +1,200 @@
+//! Flags shared by commands that read a data file: where it is, how to read
+//! it, and which column plays which role.
+
+use crate::data::EncodedTable;
+use crate::data::join::{JoinSummary, attach_source};
+use crate::data::load::{self, FileFormat, FileSummary, LoadOptions};
+use crate::data::prepare::{self, EncodeOptions, Roles};
+use crate::scan::Progress;
+use anyhow::{Context, Result, bail};
+use clap::{Args, ValueEnum};
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+#[derive(Debug, Clone, Copy, ValueEnum)]
+pub enum FormatArg {
+    Csv,
+    Parquet,
+}
+
+#[derive(Debug, Args)]
+pub struct DataArgs {
+    /// The data file (CSV with a header row, or Parquet).
+    pub data: PathBuf,
+    /// Protected attribute column (repeat for several).
+    #[arg(long = "protected", short = 'p', value_name = "COL", required = true)]
+    pub protected: Vec<String>,
+    /// Outcome column: never used as a feature.
+    #[arg(long, value_name = "COL")]
+    pub outcome: Option<String>,
+    /// Column to leave out (repeatable), e.g. a customer number.
+    #[arg(long, value_name = "COL")]
+    pub exclude: Vec<String>,
+    /// Only these feature columns (comma-separated).
+    #[arg(long, value_name = "COL,...", value_delimiter = ',')]
+    pub features: Option<Vec<String>>,
+    /// Read this column as categories even if it looks numeric (repeatable).
+    #[arg(long, value_name = "COL")]
+    pub categorical: Vec<String>,
+    /// Band a numeric protected attribute, e.g. `age=18,25,35,50,65`.
+    #[arg(long, value_name = "COL=EDGES")]
+    pub band: Vec<String>,
+    /// Also scan the combination of all protected attributes as one attribute.
+    #[arg(long)]
+    pub intersect: bool,
+    /// File format; chosen by extension when absent.
+    #[arg(long, value_enum)]
+    pub format: Option<FormatArg>,
+    /// CSV field separator (one character; `\t` for tab).
+    #[arg(long, default_value = ",")]
+    pub delimiter: String,
+    /// Scan a stratified random sample of this many rows.
+    #[arg(long, value_name = "N")]
+    pub sample: Option<usize>,
+    /// Quantile bins for numeric features.
+    #[arg(long, default_value_t = 32)]
+    pub bins: usize,
+    /// Cross-validation folds.
+    #[arg(long, default_value_t = 5)]
+    pub folds: usize,
+    /// Seed for folds, sampling and models.
+    #[arg(long, default_value_t = 0)]
+    pub seed: u64,
+    /// Most classes a protected attribute may have.
+    #[arg(long, default_value_t = 50)]
+    pub max_classes: usize,
+    /// Suppress report cells with fewer rows than this.
+    #[arg(long, default_value_t = 10)]
+    pub min_cell: u64,
+    /// No progress bars.
+    #[arg(long, short = 'q')]
+    pub quiet: bool,
+    /// Print each stage's wall time to standard error (for benchmarks).
+    #[arg(long)]
+    pub timings: bool,
+}
+
+impl DataArgs {
+    pub fn load_options(&self) -> Result<LoadOptions> {
+        let delimiter = match self.delimiter.as_str() {
+            "\\t" | "tab" => b'\t',
+            d if d.len() == 1 => d.as_bytes()[0],
+            d => bail!("--delimiter must be one character, got `{d}`"),
+        };
+        Ok(LoadOptions {
+            format: self.format.map(|f| match f {
+                FormatArg::Csv => FileFormat::Csv,
+                FormatArg::Parquet => FileFormat::Parquet,
+            }),
+            delimiter,
+        })
+    }
+
+    pub fn roles(&self) -> Result<Roles> {
+        let mut bands = BTreeMap::new();
+        for spec in &self.band {
+            let (column, edges) = spec
+                .split_once('=')
+                .with_context(|| format!("--band `{spec}`: expected COL=EDGE,EDGE,..."))?;
+            let edges: Vec<f64> = edges
+                .split(',')
+                .map(|e| e.trim().parse::<f64>().ok().filter(|v| v.is_finite()))
+                .collect::<Option<_>>()
+                .with_context(|| format!("--band `{spec}`: edges must be numbers"))?;
+            if edges.is_empty() || edges.windows(2).any(|w| w[0] >= w[1]) {
+                bail!("--band `{spec}`: edges must be increasing");
+            }
+            bands.insert(column.to_string(), edges);
+        }
+        Ok(Roles {
+            protected: self.protected.clone(),
+            outcome: self.outcome.clone(),
+            exclude: self.exclude.clone(),
+            features: self.features.clone(),
+            categorical: self.categorical.clone(),
+            bands,
+            intersect: self.intersect,
+        })
+    }
+
+    pub fn encode_options(&self) -> Result<EncodeOptions> {
+        if self.folds < 2 || self.folds > 50 {
+            bail!("--folds must be between 2 and 50, got {}", self.folds);
+        }
+        if self.bins < 2 || self.bins > 1024 {
+            bail!("--bins must be between 2 and 1024, got {}", self.bins);
+        }
+        Ok(EncodeOptions {
+            bins: self.bins,
+            max_classes: self.max_classes,
+            min_class_rows: self.folds,
+            sample: self.sample,
+            seed: self.seed,
+            ..EncodeOptions::default()
+        })
+    }
+
+    /// Checks, reads and encodes the file.
+    pub fn load(&self, progress: &dyn Progress) -> Result<(FileSummary, EncodedTable)> {
+        let options = self.load_options()?;
+        let roles = self.roles()?;
+        let encode = self.encode_options()?;
+        progress.stage("checking file", 1);
+        let summary = load::inspect(&self.data, options)?;
+        let plan = prepare::plan_columns(&self.data, &summary.columns, &roles)?;
+        progress.stage("reading columns", 1);
+        let frame = load::read_columns(&summary, &plan.needed(), options)?;
+        progress.stage("encoding", 1);
+        let table = prepare::encode_table(&self.data, &frame, &plan, &roles, &encode)?;
+        Ok((summary, table))
+    }
+
+    /// Checks, reads and joins a new source onto the base file by `key`, then
+    /// encodes both; the key itself is never a feature.
+    pub fn load_with_source(
+        &self,
+        source: &Path,
+        key: &str,
+        progress: &dyn Progress,
+    ) -> Result<(FileSummary, FileSummary, JoinSummary, EncodedTable)> {
+        let options = self.load_options()?;
+        let mut roles = self.roles()?;
+        let encode = self.encode_options()?;
+        progress.stage("checking files", 2);
+        let base = load::inspect(&self.data, options)?;
+        let source_options = LoadOptions {
+            format: None,
+            ..options
+        };
+        let added = load::inspect(source, source_options)?;
+        for (summary, path) in [(&base, &self.data), (&added, &source.to_path_buf())] {
+            if !summary.columns.iter().any(|c| c == key) {
+                bail!(
+                    "{}: key column `{key}` not found (columns are: {})",
+                    path.display(),
+                    summary.columns.join(", ")
+                );
+            }
+        }
+        roles.exclude.push(key.to_string());
+        let base_plan = prepare::plan_columns(&self.data, &base.columns, &roles)?;
+        let mut needed = base_plan.needed();
+        needed.push(key.to_string());
+        progress.stage("reading and joining", 1);
+        let base_frame = load::read_columns(&base, &needed, options)?;
+        let added_frame = load::read_columns(&added, &added.columns, source_options)?;
+        let (joined, join) = attach_source(base_frame, &self.data, added_frame, source, key)?;
+        if let Some(features) = roles.features.as_mut() {
+            features.extend(join.new_columns.iter().cloned());
+        }
+        let columns: Vec<String> = joined
+            .get_column_names()
+            .iter()
+            .map(|n| n.to_string())
+            .collect();
+        let plan = prepare::plan_columns(&self.data, &columns, &roles)?;
+        progress.stage("encoding", 1);
+        let table = prepare::encode_table(&self.data, &joined, &plan, &roles, &encode)?;
+        Ok((base, added, join, table))
+    }
+}

@@ -1,0 +1,140 @@
+//! `telltale demo`: generate the fictional demo data, scan it, write the report.
+
+use super::Status;
+use super::progress::TerminalProgress;
+use super::scan::{ScanSettingsArgs, command_line, emit};
+use crate::data::demo::{DemoSpec, generate};
+use crate::data::prepare::{EncodeOptions, Roles, encode_table, plan_columns};
+use crate::report::DatasetInfo;
+use crate::scan;
+use anyhow::{Context, Result, bail};
+use clap::Args;
+use polars::prelude::{CsvWriter, SerWriter};
+use std::path::{Path, PathBuf};
+
+/// Default folder of the demo report; a free numbered sibling is used if it exists.
+const DEFAULT_DIR: &str = "telltale-demo";
+
+#[derive(Debug, Args)]
+pub struct DemoArgs {
+    /// Rows to generate.
+    #[arg(long, default_value_t = 20_000)]
+    pub rows: usize,
+    /// Seed of the generator and of the scan.
+    #[arg(long, default_value_t = 0)]
+    pub seed: u64,
+    /// Extra pure-noise numeric columns (for wide benchmarks).
+    #[arg(long, default_value_t = 0)]
+    pub extra_noise: usize,
+    /// Report folder (default `telltale-demo/`, or the next free `telltale-demo-N/`).
+    #[arg(long, value_name = "DIR")]
+    pub report: Option<PathBuf>,
+    /// Only write the generated data to this CSV file, for trying `telltale scan` on it.
+    #[arg(long, value_name = "FILE")]
+    pub write_data: Option<PathBuf>,
+    /// Replace existing files.
+    #[arg(long)]
+    pub force: bool,
+    /// Cross-validation folds.
+    #[arg(long, default_value_t = 5)]
+    pub folds: usize,
+    /// Quantile bins for numeric features.
+    #[arg(long, default_value_t = 32)]
+    pub bins: usize,
+    /// No progress bars.
+    #[arg(long, short = 'q')]
+    pub quiet: bool,
+    /// Print each stage's wall time to standard error (for benchmarks).
+    #[arg(long)]
+    pub timings: bool,
+    #[command(flatten)]
+    pub settings: ScanSettingsArgs,
+}
+
+pub fn run(args: &DemoArgs) -> Result<Status> {
+    if args.rows < 100 {
+        bail!("--rows must be at least 100, got {}", args.rows);
+    }
+    let spec = DemoSpec {
+        rows: args.rows,
+        seed: args.seed,
+        extra_noise: args.extra_noise,
+    };
+    let mut data = generate(spec);
+    if let Some(path) = &args.write_data {
+        return write_data(path, &mut data.frame, args.force);
+    }
+    let dir = match &args.report {
+        Some(dir) => dir.clone(),
+        None => free_folder(Path::new(DEFAULT_DIR)),
+    };
+    let progress = TerminalProgress::with_timings(args.quiet, args.timings);
+    let options = args.settings.options(args.folds, args.seed, 10)?;
+    let source = Path::new("demo");
+    let columns: Vec<String> = data
+        .frame
+        .get_column_names()
+        .iter()
+        .map(|n| n.to_string())
+        .collect();
+    let roles = Roles {
+        protected: vec!["community".to_string()],
+        ..Roles::default()
+    };
+    let plan = plan_columns(source, &columns, &roles)?;
+    let encode = EncodeOptions {
+        bins: args.bins,
+        min_class_rows: args.folds,
+        seed: args.seed,
+        ..EncodeOptions::default()
+    };
+    let table = encode_table(source, &data.frame, &plan, &roles, &encode)?;
+    let dataset = DatasetInfo {
+        source: format!("demo:seed={}:rows={}", args.seed, args.rows),
+        rows: args.rows,
+        rows_used: table.rows(),
+        columns: columns.len(),
+        sha256: None,
+        rows_dropped_missing_protected: 0,
+        sample: None,
+    };
+    let report = scan::build_report(
+        &table,
+        dataset,
+        &options,
+        args.bins,
+        command_line(),
+        &progress,
+    );
+    emit(&report, Some(&dir), None, args.force)?;
+    Ok(Status::Clean)
+}
+
+/// `base`, or `base-2`, `base-3`... whichever does not exist yet.
+fn free_folder(base: &Path) -> PathBuf {
+    std::iter::once(base.to_path_buf())
+        .chain((2..).map(|n| PathBuf::from(format!("{}-{n}", base.display()))))
+        .find(|p| !p.exists())
+        .unwrap_or_else(|| base.to_path_buf())
+}
+
+fn write_data(path: &Path, frame: &mut polars::prelude::DataFrame, force: bool) -> Result<Status> {
+    if path.exists() && !force {
+        bail!(
+            "{}: file exists; pass --force to replace it",
+            path.display()
+        );
+    }
+    let mut file = std::fs::File::create(path)
+        .with_context(|| format!("{}: cannot create", path.display()))?;
+    CsvWriter::new(&mut file)
+        .finish(frame)
+        .with_context(|| format!("{}: cannot write CSV", path.display()))?;
+    println!(
+        "wrote {} rows to {}; try: telltale scan {} --protected community --exclude application_ref",
+        frame.height(),
+        path.display(),
+        path.display()
+    );
+    Ok(Status::Clean)
+}

@@ -1,0 +1,55 @@
+//! `telltale explain DATA --protected A --feature F`: the evidence on one feature.
+
+use super::Status;
+use super::data_args::DataArgs;
+use super::output::write_one;
+use super::progress::TerminalProgress;
+use super::scan::ScanSettingsArgs;
+use crate::report::explanation::render_text;
+use crate::scan::explain::explain;
+use anyhow::{Context, Result};
+use clap::Args;
+use std::path::PathBuf;
+
+#[derive(Debug, Args)]
+pub struct ExplainArgs {
+    #[command(flatten)]
+    pub data: DataArgs,
+    /// The feature to explain.
+    #[arg(long, value_name = "COL")]
+    pub feature: String,
+    #[command(flatten)]
+    pub settings: ScanSettingsArgs,
+    /// Also write the explanation as JSON to this file (`-` for standard output only).
+    #[arg(long, value_name = "PATH")]
+    pub json: Option<PathBuf>,
+    /// Replace an existing JSON file.
+    #[arg(long)]
+    pub force: bool,
+}
+
+pub fn run(args: &ExplainArgs) -> Result<Status> {
+    let progress = TerminalProgress::with_timings(args.data.quiet, args.data.timings);
+    let options = args
+        .settings
+        .options(args.data.folds, args.data.seed, args.data.min_cell)?;
+    let (summary, table) = args.data.load(&progress)?;
+    let mut explanations = Vec::new();
+    for index in 0..table.protected.len() {
+        let explanation = explain(&table, index, &args.feature, &options, &progress)
+            .with_context(|| summary.path.display().to_string())?;
+        explanations.push(explanation);
+    }
+    let to_stdout = args.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
+    if !to_stdout {
+        for explanation in &explanations {
+            print!("{}", render_text(explanation));
+        }
+    }
+    if let Some(path) = &args.json {
+        let text = serde_json::to_string_pretty(&explanations)
+            .context("cannot serialise the explanation")?;
+        write_one(path, &format!("{text}\n"), args.force)?;
+    }
+    Ok(Status::Clean)
+}

@@ -1,0 +1,53 @@
+//! Writing report files: never overwriting a report the user did not ask to replace.
+
+use crate::report::{Renderer, Report};
+use anyhow::{Context, Result, bail};
+use std::fs;
+use std::io::Write;
+use std::path::Path;
+
+/// Writes every renderer's file into `dir`, refusing to replace existing ones unless `force`.
+pub fn write_report_dir(
+    dir: &Path,
+    report: &Report,
+    renderers: &[&dyn Renderer],
+    force: bool,
+) -> Result<()> {
+    let existing: Vec<String> = renderers
+        .iter()
+        .map(|r| dir.join(r.file_name()))
+        .filter(|p| p.exists())
+        .map(|p| p.display().to_string())
+        .collect();
+    if !existing.is_empty() && !force {
+        bail!(
+            "{}: a report is already there ({}); choose another folder or pass --force to replace it",
+            dir.display(),
+            existing.join(", ")
+        );
+    }
+    fs::create_dir_all(dir).with_context(|| format!("{}: cannot create folder", dir.display()))?;
+    for renderer in renderers {
+        let path = dir.join(renderer.file_name());
+        fs::write(&path, renderer.render(report))
+            .with_context(|| format!("{}: cannot write", path.display()))?;
+    }
+    Ok(())
+}
+
+/// Writes one rendered document to `target`: `-` is standard output; an existing file needs `force`.
+pub fn write_one(target: &Path, text: &str, force: bool) -> Result<()> {
+    if target == Path::new("-") {
+        let mut out = std::io::stdout().lock();
+        out.write_all(text.as_bytes())
+            .context("cannot write to standard output")?;
+        return Ok(());
+    }
+    if target.exists() && !force {
+        bail!(
+            "{}: file exists; pass --force to replace it",
+            target.display()
+        );
+    }
+    fs::write(target, text).with_context(|| format!("{}: cannot write", target.display()))
+}

@@ -1,0 +1,144 @@
+//! Everything about one feature, for a reviewer who must justify keeping or
+//! dropping it: its measures, its level table, its best partners and a
+//! paragraph that can be pasted into a review.
+
+use super::composition::composition;
+use super::evaluate::Target;
+use super::pairs::evaluate_pairs;
+use super::singles::scan_singles;
+use super::{Progress, ScanOptions};
+use crate::data::EncodedTable;
+use crate::report::explanation::{DOMINATED_SHARE, Explanation};
+use crate::report::{FeatureResult, LevelComposition, PairResult};
+use crate::stats::contingency::Contingency;
+
+/// Partners listed for the feature.
+const PARTNERS: usize = 5;
+
+/// Why a feature cannot be explained.
+#[derive(Debug, thiserror::Error)]
+pub enum ExplainError {
+    #[error("feature `{0}` is not among the scanned features{1}")]
+    UnknownFeature(String, String),
+}
+
+/// Scans `feature` against the protected attribute at `attribute` (an index into `table.protected`).
+pub fn explain(
+    table: &EncodedTable,
+    attribute: usize,
+    feature: &str,
+    options: &ScanOptions,
+    progress: &dyn Progress,
+) -> Result<Explanation, ExplainError> {
+    let protected = &table.protected[attribute];
+    let Some(index) = table.features.iter().position(|f| f.name == feature) else {
+        let skipped = table
+            .skipped
+            .iter()
+            .find(|s| s.name == feature)
+            .map(|s| format!(" (skipped: {})", s.reason))
+            .unwrap_or_default();
+        return Err(ExplainError::UnknownFeature(feature.to_string(), skipped));
+    };
+    let target = Target::new(protected, options.folds, options.seed);
+    let singles = scan_singles(&table.features, &target, options, progress);
+    let pairs: Vec<(usize, usize)> = (0..table.features.len())
+        .filter(|&j| j != index)
+        .map(|j| (index.min(j), index.max(j)))
+        .collect();
+    let mut partners = evaluate_pairs(
+        &table.features,
+        &pairs,
+        &singles,
+        &target,
+        options,
+        progress,
+    );
+    partners.truncate(PARTNERS);
+    progress.finish();
+    let column = &table.features[index];
+    let contingency = Contingency::from_codes(
+        &column.codes,
+        column.n_levels,
+        target.codes(),
+        target.n_classes() as u32,
+    );
+    let levels = composition(column, &contingency, &target, options.min_cell);
+    let with_shares: Vec<&LevelComposition> = levels
+        .iter()
+        .filter(|l| l.shares.iter().all(Option::is_some))
+        .collect();
+    let levels_with_shares = with_shares.len();
+    let dominated = with_shares
+        .iter()
+        .filter(|l| l.shares.iter().flatten().any(|&s| s >= DOMINATED_SHARE))
+        .count();
+    let result = singles
+        .into_iter()
+        .find(|f| f.name == feature)
+        .ok_or_else(|| ExplainError::UnknownFeature(feature.to_string(), String::new()))?;
+    let paragraph = paragraph(
+        &protected.name,
+        &result,
+        dominated,
+        levels_with_shares,
+        levels.len(),
+        partners.first(),
+    );
+    Ok(Explanation {
+        protected: protected.name.clone(),
+        protected_levels: protected.labels.clone(),
+        feature: result,
+        levels,
+        dominated_levels: dominated,
+        levels_with_shares,
+        partners,
+        paragraph,
+        min_cell: options.min_cell,
+        caution: crate::CAUTION.to_string(),
+    })
+}
+
+/// The plain-language summary a reviewer can paste.
+fn paragraph(
+    protected: &str,
+    feature: &FeatureResult,
+    dominated: usize,
+    with_shares: usize,
+    levels: usize,
+    partner: Option<&PairResult>,
+) -> String {
+    let mut text = match (feature.auc, feature.auc_low, feature.auc_high) {
+        (Some(auc), Some(low), Some(high)) => format!(
+            "Knowing `{}` alone recovers `{protected}` with AUC {auc:.2} ({low:.2}–{high:.2}, 95% DeLong interval, out-of-fold {} surrogate); it is flagged {}.",
+            feature.name,
+            feature.surrogate.as_deref().unwrap_or("best"),
+            feature.flag.as_str()
+        ),
+        _ => format!("No surrogate could be fitted on `{}`.", feature.name),
+    };
+    if with_shares > 0 {
+        text.push_str(&format!(
+            " {dominated} of its {with_shares} levels shown with group shares (of {levels}) are at least {:.0}% one group.",
+            DOMINATED_SHARE * 100.0
+        ));
+    }
+    if let Some(info) = feature.heldout_info_nats {
+        text.push_str(&format!(
+            " Held-out information: {info:.4} nats (plug-in MI {:.4} nats, adjusted MI {:.4}).",
+            feature.mi_nats, feature.ami
+        ));
+    }
+    if let Some(p) = partner.filter(|p| p.gain > 0.01) {
+        let other = if p.features[0] == feature.name {
+            &p.features[1]
+        } else {
+            &p.features[0]
+        };
+        text.push_str(&format!(
+            " Together with `{other}` it reaches AUC {:.2} ({:+.2} over the better of the two alone).",
+            p.auc, p.gain
+        ));
+    }
+    text
+}
