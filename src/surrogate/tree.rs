@@ -37,8 +37,7 @@ impl Default for TreeSurrogate {
 
 /// The value a tree sees for `row`: the raw number (`NaN` = missing) or the
 /// ordinal code of a categorical column, with its missing level as −1.
-#[must_use]
-pub fn ordinal_value(column: &EncodedColumn, row: usize) -> f64 {
+fn ordinal_value(column: &EncodedColumn, row: usize) -> f64 {
     match &column.raw {
         Some(raw) => raw[row],
         None if Some(column.codes[row]) == column.missing_code => -1.0,
