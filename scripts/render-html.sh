@@ -10,7 +10,10 @@
 # Console check: Chromium is run with --enable-logging=stderr --v=0, which
 # writes every console message of the page to stderr as
 # `...:CONSOLE(line)] "message"`, and uncaught exceptions as "Uncaught ...".
-# Any such line fails the run (the report has no scripts, so none is expected).
+# A failed load logs `net::ERR_...`. Any such line fails the run (the report
+# has no scripts and loads nothing, so none is expected). Checked here by
+# rendering a page whose script calls console.error and an undefined
+# function: both lines appear as `INFO:CONSOLE:1] "..."`.
 # The page must also not refer to any address (http/https, src=, <link>):
 # it is checked before rendering.
 set -euo pipefail
@@ -48,9 +51,10 @@ chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run \
     --enable-logging=stderr --v=0 \
     --window-size=1280,4000 --screenshot="$png" "file://$report" 2>"$log" >/dev/null
 
-if grep -Eq 'CONSOLE|Uncaught' "$log"; then
-    echo "FAIL: the page logged console messages:" >&2
-    grep -E 'CONSOLE|Uncaught' "$log" >&2
+console_pattern='CONSOLE|Uncaught|net::ERR_'
+if grep -Eq "$console_pattern" "$log"; then
+    echo "FAIL: the page logged console messages or failed loads:" >&2
+    grep -E "$console_pattern" "$log" >&2
     exit 1
 fi
 [[ -s "$png" ]] || { echo "FAIL: no screenshot written" >&2; cat "$log" >&2; exit 1; }

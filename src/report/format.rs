@@ -130,8 +130,11 @@ pub fn pair_cells(pair: &PairResult) -> [String; 4] {
 /// One reproducibility setting: a label and its value; `literal` values
 /// (hashes, commands) are shown verbatim in code style.
 pub struct Setting {
+    /// What the value is, e.g. `Seed`.
     pub label: &'static str,
+    /// The value as plain text.
     pub value: String,
+    /// Show verbatim in code style.
     pub literal: bool,
 }
 
@@ -200,6 +203,7 @@ fn rows_summary(report: &Report) -> String {
 /// One cell of a level-composition table.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Cell {
+    /// A formatted count or share.
     Value(String),
     /// Below `min_cell`; the value is withheld.
     Suppressed,
@@ -265,14 +269,19 @@ pub fn escape_markup(text: &str) -> String {
     out
 }
 
-/// Shortens `text` to at most `max` characters, ending in `…` when cut.
+/// Shortens `text` to at most `max` characters by cutting out its middle
+/// (`…` marks the cut), so names that share a prefix stay distinguishable.
 #[must_use]
 pub fn truncate(text: &str, max: usize) -> String {
-    if text.chars().count() <= max {
+    let length = text.chars().count();
+    if length <= max {
         return text.to_owned();
     }
-    let kept: String = text.chars().take(max.saturating_sub(1)).collect();
-    format!("{kept}…")
+    let kept = max.saturating_sub(1);
+    let head = kept.div_ceil(2);
+    let head_text: String = text.chars().take(head).collect();
+    let tail_text: String = text.chars().skip(length - (kept - head)).collect();
+    format!("{head_text}…{tail_text}")
 }
 
 #[cfg(test)]
@@ -298,6 +307,13 @@ mod tests {
         let computed: Vec<f64> = aucs.iter().flatten().copied().collect();
         assert!(computed.windows(2).all(|w| w[0] >= w[1]));
         assert_eq!(aucs.last(), Some(&None));
+    }
+
+    #[test]
+    fn truncation_keeps_both_ends() {
+        assert_eq!(truncate("income_band_2024_q1", 9), "inco…4_q1");
+        assert_eq!(truncate("short", 9), "short");
+        assert_eq!(truncate("é".repeat(12).as_str(), 5).chars().count(), 5);
     }
 
     #[test]

@@ -97,6 +97,18 @@ fn flag_badge(flag: Flag) -> String {
     format!(r#"<span class="flag flag-{0}">{0}</span>"#, flag.as_str())
 }
 
+/// An escaped name that may wrap after `_`, `.` or `|` in narrow table columns.
+fn breakable(name: &str) -> String {
+    let mut out = String::new();
+    for c in name.chars() {
+        out.push_str(&esc(c.encode_utf8(&mut [0; 4])));
+        if matches!(c, '_' | '.' | '|') {
+            out.push_str("<wbr>");
+        }
+    }
+    out
+}
+
 fn code(text: &str) -> String {
     format!("<code>{}</code>", esc(text))
 }
@@ -198,7 +210,7 @@ fn features_part(result: &ProtectedResult, report: &Report) -> String {
         .map(|f| {
             let [name, kind, auc, info, ami, _, policy] = format::feature_cells(f);
             vec![
-                esc(&name),
+                breakable(&name),
                 esc(&kind),
                 auc,
                 info,
@@ -264,7 +276,7 @@ fn pairs_part(result: &ProtectedResult) -> String {
         .iter()
         .map(|p| {
             let [pair, auc, gain, _] = format::pair_cells(p);
-            vec![esc(&pair), auc, gain, flag_badge(p.flag)]
+            vec![breakable(&pair), auc, gain, flag_badge(p.flag)]
         })
         .collect();
     format!(
@@ -311,7 +323,7 @@ fn whole_set_part(whole: &WholeSet, result: &ProtectedResult, target_auc: f64) -
         .map(|(i, s)| {
             vec![
                 (i + 1).to_string(),
-                esc(&s.remove),
+                breakable(&s.remove),
                 format::auc_interval(Some(s.auc_after), Some(s.auc_low), Some(s.auc_high)),
             ]
         })

@@ -376,7 +376,9 @@ fn feature_bar(
 
 /// One curve of [`roc_curves`].
 pub struct RocSeries<'a> {
+    /// Legend text: the feature name or the whole set.
     pub label: &'a str,
+    /// Shown beside the label in the legend.
     pub auc: Option<f64>,
     /// (false positive rate, true positive rate) points in drawing order.
     pub points: &'a [[f64; 2]],
@@ -512,12 +514,14 @@ pub fn pair_heatmap(title: &str, pairs: &[&PairResult]) -> String {
         .collect();
     let limit = gains.values().fold(0.01_f64, |m, g| m.max(g.abs()));
     let n = names.len().max(1) as f64;
-    let cell = (420.0 / n).clamp(14.0, 44.0);
     let label = names
         .iter()
         .map(|s| text_width(&truncate(s, NAME_CHARS), 10.0))
         .fold(40.0, f64::max);
     let left = label + 34.0;
+    // Column labels slant up to the right by about 0.72 of their length.
+    let room = WIDTH - left - label * 0.72 - 8.0;
+    let cell = (room / n).clamp(12.0, 44.0);
     let top = label * 0.72 + 20.0;
     let grid_bottom = top + n * cell;
     let mut canvas = Canvas::new("pairs", grid_bottom + 96.0, title);

@@ -7,6 +7,7 @@ use super::{Flag, ProtectedResult, Renderer, Report, WholeSet};
 /// Plain-text renderer; `colour` adds ANSI styles (decide it with
 /// `std::io::IsTerminal` on the destination stream).
 pub struct TerminalRenderer {
+    /// Emit ANSI colour sequences.
     pub colour: bool,
 }
 

@@ -37,15 +37,21 @@ const PROBABILITY_FLOOR: f64 = 1e-15;
 /// The boosted surrogate's parameters.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct BoostedSurrogate {
+    /// Shrinkage applied to every leaf value.
     pub learning_rate: f64,
+    /// Boosting iterations at most (each adds one tree per class, one in all when binary).
     pub max_iter: usize,
+    /// Leaves per tree, grown best-first (largest gain next).
     pub max_leaf_nodes: usize,
+    /// Fewest fitting rows a leaf may hold.
     pub min_samples_leaf: usize,
+    /// L2 penalty λ on leaf values: value = −G / (H + λ).
     pub l2_regularization: f64,
     /// Bins for non-missing values of a numeric column (≤ 255).
     pub max_bins: usize,
     /// Early stopping is used when the training rows exceed this.
     pub early_stopping_above: usize,
+    /// Share of the training rows held out (per class) to watch the loss.
     pub validation_fraction: f64,
     /// Stop after this many iterations without a validation-loss gain above `tolerance`.
     pub n_iter_no_change: usize,
@@ -241,6 +247,9 @@ impl Sums {
     }
 }
 
+/// Sums per bin of one feature; 256 cells so any `u8` bin indexes it.
+type Histogram = [Sums; 256];
+
 /// How a split sends rows left.
 #[derive(Debug, Clone, PartialEq)]
 enum Rule {
@@ -417,7 +426,7 @@ struct GrowingLeaf {
     start: usize,
     end: usize,
     total: Sums,
-    hist: Vec<Vec<Sums>>,
+    hist: Vec<Histogram>,
     split: Option<Split>,
 }
 
@@ -432,17 +441,23 @@ struct TreeGrower<'a> {
 }
 
 impl TreeGrower<'_> {
-    fn histograms(&self, start: usize, end: usize) -> Vec<Vec<Sums>> {
+    /// Per-feature histograms of rows `start..end`; gradients are gathered
+    /// into row order once so each feature's pass reads them contiguously.
+    fn histograms(&self, start: usize, end: usize) -> Vec<Histogram> {
         let rows = &self.rows[start..end];
+        let gradients: Vec<[f64; 2]> = rows
+            .iter()
+            .map(|&r| [self.g[r as usize], self.h[r as usize]])
+            .collect();
         (0..self.binned.bins.len())
             .into_par_iter()
             .map(|f| {
-                let mut hist = vec![Sums::default(); self.binned.width(f)];
+                let mut hist = [Sums::default(); 256];
                 let bins = &self.binned.bins[f];
-                for &r in rows {
+                for (&r, &[g, h]) in rows.iter().zip(&gradients) {
                     let cell = &mut hist[usize::from(bins[r as usize])];
-                    cell.g += self.g[r as usize];
-                    cell.h += self.h[r as usize];
+                    cell.g += g;
+                    cell.h += h;
                     cell.n += 1.0;
                 }
                 hist
@@ -450,7 +465,7 @@ impl TreeGrower<'_> {
             .collect()
     }
 
-    fn best_split(&self, total: Sums, hist: &[Vec<Sums>]) -> Option<Split> {
+    fn best_split(&self, total: Sums, hist: &[Histogram]) -> Option<Split> {
         if total.n < 2.0 * self.params.min_samples_leaf as f64 {
             return None;
         }
@@ -462,6 +477,7 @@ impl TreeGrower<'_> {
             .par_iter()
             .enumerate()
             .map(|(f, hist)| {
+                let hist = &hist[..self.binned.width(f)];
                 if self.binned.categorical[f] {
                     context.categorical(f, hist)
                 } else {
@@ -478,7 +494,7 @@ impl TreeGrower<'_> {
             })
     }
 
-    fn leaf(&mut self, start: usize, end: usize, hist: Vec<Vec<Sums>>) -> GrowingLeaf {
+    fn leaf(&mut self, start: usize, end: usize, hist: Vec<Histogram>) -> GrowingLeaf {
         let total = hist.first().map_or(Sums::default(), |h| {
             h.iter().fold(Sums::default(), |mut acc, s| {
                 acc.add(*s);
@@ -505,11 +521,17 @@ impl TreeGrower<'_> {
     fn partition(&mut self, leaf: &GrowingLeaf, split: &Split) -> usize {
         let bins = &self.binned.bins[split.feature];
         let missing = self.binned.value_bins[split.feature] as u8;
-        let (left, right): (Vec<u32>, Vec<u32>) = self.rows[leaf.start..leaf.end]
-            .iter()
-            .partition(|&&r| split.rule.goes_left(bins[r as usize], missing));
-        let middle = leaf.start + left.len();
-        self.rows[leaf.start..middle].copy_from_slice(&left);
+        let mut right = Vec::new();
+        let mut middle = leaf.start;
+        for i in leaf.start..leaf.end {
+            let r = self.rows[i];
+            if split.rule.goes_left(bins[r as usize], missing) {
+                self.rows[middle] = r;
+                middle += 1;
+            } else {
+                right.push(r);
+            }
+        }
         self.rows[middle..leaf.end].copy_from_slice(&right);
         middle
     }
@@ -524,11 +546,11 @@ impl TreeGrower<'_> {
             (middle, leaf.end)
         };
         let small = self.histograms(small_start, small_end);
-        let large: Vec<Vec<Sums>> = leaf
+        let large: Vec<Histogram> = leaf
             .hist
             .iter()
             .zip(&small)
-            .map(|(p, s)| p.iter().zip(s).map(|(a, b)| a.minus(*b)).collect())
+            .map(|(p, s)| std::array::from_fn(|b| p[b].minus(s[b])))
             .collect();
         let (left_hist, right_hist) = if left_smaller {
             (small, large)

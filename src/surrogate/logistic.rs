@@ -381,6 +381,43 @@ struct Evaluation {
     hess: Vec<f64>,
 }
 
+/// Fills `p` with the pattern's class probabilities and returns −Σ counts · log p.
+/// Binary rows use one exponential: with e = exp(−|z|), −log p₁ = softplus(−z)
+/// and −log p₀ = softplus(z), where softplus(t) = max(t, 0) + ln(1 + e).
+fn pattern_loss(
+    coef: &Coefficients,
+    theta: &[f64],
+    index: &[u32],
+    x: &[f64],
+    counts: &[f64],
+    p: &mut [f64],
+) -> f64 {
+    if coef.k != 2 {
+        coef.proba(theta, index, x, p);
+        return -counts
+            .iter()
+            .zip(p.iter())
+            .filter(|(m, _)| **m > 0.0)
+            .map(|(&m, &q)| m * q.max(1e-300).ln())
+            .sum::<f64>();
+    }
+    let z = theta[coef.width]
+        + index
+            .iter()
+            .zip(x)
+            .map(|(&j, &v)| theta[j as usize] * v)
+            .sum::<f64>();
+    let e = (-z.abs()).exp();
+    let log_one_plus_e = e.ln_1p();
+    p[1] = if z >= 0.0 {
+        1.0 / (1.0 + e)
+    } else {
+        e / (1.0 + e)
+    };
+    p[0] = 1.0 - p[1];
+    counts[1] * ((-z).max(0.0) + log_one_plus_e) + counts[0] * (z.max(0.0) + log_one_plus_e)
+}
+
 /// Evaluates C · Σ counts · (−log p) + ½‖w‖² and its derivatives at `theta`.
 fn evaluate(coef: &Coefficients, patterns: &Patterns, theta: &[f64], c: f64) -> Evaluation {
     let stride = coef.width + 1;
@@ -389,36 +426,29 @@ fn evaluate(coef: &Coefficients, patterns: &Patterns, theta: &[f64], c: f64) -> 
     let mut grad = vec![0.0; dim];
     let mut hess = vec![0.0; dim * dim];
     let mut p = vec![0.0; coef.k];
-    let intercept = coef.width as u32;
+    let mut nonzeros: Vec<(usize, f64)> = Vec::new();
     for i in 0..patterns.len() {
         let (index, x) = patterns.row(i);
         let counts = &patterns.counts[i * coef.k..(i + 1) * coef.k];
-        coef.proba(theta, index, x, &mut p);
+        value += c * pattern_loss(coef, theta, index, x, counts, &mut p);
         let n: f64 = counts.iter().sum();
-        value -= c * counts
-            .iter()
-            .zip(&p)
-            .filter(|(m, _)| **m > 0.0)
-            .map(|(&m, &q)| m * q.max(1e-300).ln())
-            .sum::<f64>();
-        let with_intercept = || {
-            index
-                .iter()
-                .copied()
-                .zip(x.iter().copied())
-                .chain([(intercept, 1.0)])
-        };
+        nonzeros.clear();
+        nonzeros.extend(index.iter().map(|&j| j as usize).zip(x.iter().copied()));
+        nonzeros.push((coef.width, 1.0));
         for a in 0..coef.slots() {
             let ca = coef.slot_class(a);
             let residual = c * (n * p[ca] - counts[ca]);
-            with_intercept().for_each(|(j, v)| grad[a * stride + j as usize] += residual * v);
+            for &(j, v) in &nonzeros {
+                grad[a * stride + j] += residual * v;
+            }
             for b in 0..coef.slots() {
                 let curvature =
                     c * n * p[ca] * (f64::from(u8::from(a == b)) - p[coef.slot_class(b)]);
-                for (i, vi) in with_intercept() {
-                    let row = (a * stride + i as usize) * dim + b * stride;
-                    with_intercept()
-                        .for_each(|(j, vj)| hess[row + j as usize] += curvature * vi * vj);
+                for &(i, vi) in &nonzeros {
+                    let row = (a * stride + i) * dim + b * stride;
+                    for &(j, vj) in &nonzeros {
+                        hess[row + j] += curvature * vi * vj;
+                    }
                 }
             }
         }

@@ -37,8 +37,7 @@ impl Default for TreeSurrogate {
 
 /// The value a tree sees for `row`: the raw number (`NaN` = missing) or the
 /// ordinal code of a categorical column, with its missing level as −1.
-#[must_use]
-pub fn ordinal_value(column: &EncodedColumn, row: usize) -> f64 {
+fn ordinal_value(column: &EncodedColumn, row: usize) -> f64 {
     match &column.raw {
         Some(raw) => raw[row],
         None if Some(column.codes[row]) == column.missing_code => -1.0,
@@ -194,10 +193,11 @@ impl Grower<'_> {
         counts
     }
 
-    /// Best split of a node on `feature` by the Gini proxy Σ_k n_k²/n summed over
-    /// both children (n·(1 − Gini) per child; larger is purer), given the node's rows sorted by that
-    /// feature: thresholds with missing right, then with missing left, then
-    /// observed-vs-missing; a later one wins only if strictly better.
+    /// Best split of a node on `feature` by the Gini proxy Σ_k n_k²/n summed
+    /// over both children (n·(1 − Gini) per child; larger is purer), given the
+    /// node's rows sorted by that feature: thresholds with missing right, then
+    /// with missing left, then observed-vs-missing; a later one wins only if
+    /// strictly better.
     fn best_on_feature(&self, feature: usize, sorted: &[u32], best: &mut Option<Split>) {
         let ranked = &self.ranked[feature];
         let k = self.k;
@@ -223,8 +223,9 @@ impl Grower<'_> {
             } else {
                 n_left > n_right
             };
-            let squares = |f: &dyn Fn(usize) -> f64| (0..k).map(|c| f(c) * f(c)).sum::<f64>();
-            let score = squares(&|c| left[c]) / n_left + squares(&|c| total[c] - left[c]) / n_right;
+            let left_squares: f64 = left.iter().map(|l| l * l).sum();
+            let right_squares: f64 = total.iter().zip(left).map(|(t, l)| (t - l) * (t - l)).sum();
+            let score = left_squares / n_left + right_squares / n_right;
             if best.is_none_or(|b| score > b.score) {
                 *best = Some(Split {
                     feature,
