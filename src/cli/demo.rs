@@ -131,7 +131,7 @@ fn write_data(path: &Path, frame: &mut polars::prelude::DataFrame, force: bool) 
         .finish(frame)
         .with_context(|| format!("{}: cannot write CSV", path.display()))?;
     println!(
-        "wrote {} rows to {}; try: telltale scan {} --protected community --exclude application_ref",
+        "wrote {} rows to {}; try: telltale scan {} --protected community",
         frame.height(),
         path.display(),
         path.display()

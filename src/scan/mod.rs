@@ -103,7 +103,10 @@ fn scan_attribute(
     let pairs = pairs::scan_pairs(&table.features, &features, &target, options, progress);
     let whole_set = options
         .whole_set
-        .then(|| whole::scan_whole_set(&table.features, &target, options, progress))
+        .then(|| {
+            let inputs = whole::AttackInputs::new(&table.features, &pairs);
+            whole::scan_whole_set(&inputs, &target, options, progress)
+        })
         .flatten();
     let headline = verdict::headline(
         &attribute.name,
@@ -226,7 +229,8 @@ pub fn added_source_effects(
         .iter()
         .filter_map(|attribute| {
             let target = Target::new(attribute, options.folds, options.seed);
-            whole::added_features_effect(&table.features, &indices, &target)
+            let inputs = whole::AttackInputs::new(&table.features, &[]);
+            whole::added_features_effect(&inputs, &indices, &target)
         })
         .collect()
 }

@@ -3,7 +3,8 @@
 
 use super::evaluate::{Evaluation, Target, compare, evaluate, roc};
 use super::{Progress, ScanOptions};
-use crate::data::EncodedColumn;
+use crate::data::encode::combine_codes;
+use crate::data::{EncodedColumn, FeatureKind};
 use crate::report::{DropOne, RemovalStep, WholeSet};
 use crate::surrogate::{BoostedSurrogate, Scores, Surrogate, cross_fit};
 use rayon::prelude::*;
@@ -14,9 +15,63 @@ struct Attack {
     evaluation: Evaluation,
 }
 
-fn attack(features: &[EncodedColumn], subset: &[usize], target: &Target<'_>) -> Option<Attack> {
+/// The features, plus joint columns for pairs that leak mainly together.
+///
+/// Greedy tree growth cannot find a proxy that exists only in a pair (an
+/// exclusive-or pattern: neither first split gains anything), so the pairs the
+/// pair scan found with a large gain are handed to the attacker as one joint
+/// categorical column each, present only while both members are.
+pub struct AttackInputs<'a> {
+    pub features: &'a [EncodedColumn],
+    pub joints: Vec<(usize, usize, EncodedColumn)>,
+}
+
+impl<'a> AttackInputs<'a> {
+    /// Joint columns for up to `MAX_JOINTS` reported pairs with gain ≥ `JOINT_GAIN`.
+    pub fn new(features: &'a [EncodedColumn], pairs: &[crate::report::PairResult]) -> Self {
+        let index = |name: &str| features.iter().position(|f| f.name == name);
+        let joints = pairs
+            .iter()
+            .filter(|p| p.gain >= JOINT_GAIN)
+            .take(MAX_JOINTS)
+            .filter_map(|p| {
+                let (a, b) = (index(&p.features[0])?, index(&p.features[1])?);
+                let (codes, levels) =
+                    combine_codes(&features[a].codes, &features[b].codes, features[b].n_levels);
+                let column = EncodedColumn {
+                    name: format!("{} × {}", features[a].name, features[b].name),
+                    kind: FeatureKind::Categorical,
+                    codes,
+                    n_levels: levels,
+                    labels: (0..levels).map(|l| l.to_string()).collect(),
+                    missing_code: None,
+                    raw: None,
+                    missing_count: 0,
+                };
+                Some((a, b, column))
+            })
+            .collect();
+        Self { features, joints }
+    }
+}
+
+/// Pair gain from which the pair is given to the attacker as a joint column.
+const JOINT_GAIN: f64 = 0.05;
+/// Joint columns at most.
+const MAX_JOINTS: usize = 5;
+
+fn attack(inputs: &AttackInputs<'_>, subset: &[usize], target: &Target<'_>) -> Option<Attack> {
     let model = BoostedSurrogate::default();
-    let columns: Vec<&EncodedColumn> = subset.iter().map(|&i| &features[i]).collect();
+    let joints = inputs
+        .joints
+        .iter()
+        .filter(|(a, b, _)| subset.contains(a) && subset.contains(b))
+        .map(|(_, _, column)| column);
+    let columns: Vec<&EncodedColumn> = subset
+        .iter()
+        .map(|&i| &inputs.features[i])
+        .chain(joints)
+        .collect();
     let scores = cross_fit(
         &model,
         &columns,
@@ -36,14 +91,15 @@ fn without(subset: &[usize], feature: usize) -> Vec<usize> {
 
 /// Whole-set AUC with interval, BER, drop-one ablation and removal plan.
 pub fn scan_whole_set(
-    features: &[EncodedColumn],
+    inputs: &AttackInputs<'_>,
     target: &Target<'_>,
     options: &ScanOptions,
     progress: &dyn Progress,
 ) -> Option<WholeSet> {
+    let features = inputs.features;
     let all: Vec<usize> = (0..features.len()).collect();
     progress.stage(&format!("whole set: {}", target.attribute.name), 1);
-    let full = attack(features, &all, target)?;
+    let full = attack(inputs, &all, target)?;
     progress.advance(1);
     progress.stage(
         &format!("drop-one: {}", target.attribute.name),
@@ -52,7 +108,7 @@ pub fn scan_whole_set(
     let drops: Vec<(usize, Option<Attack>)> = if features.len() > 1 {
         all.par_iter()
             .map(|&i| {
-                let result = attack(features, &without(&all, i), target);
+                let result = attack(inputs, &without(&all, i), target);
                 progress.advance(1);
                 (i, result)
             })
@@ -80,7 +136,7 @@ pub fn scan_whole_set(
         .filter_map(|(i, a)| Some((i, a?.evaluation)))
         .collect();
     let (removal_plan, target_reached) = removal_plan(
-        features,
+        inputs,
         target,
         options,
         &full.evaluation,
@@ -110,13 +166,14 @@ pub fn scan_whole_set(
 /// steps re-fit only the `removal_candidates` features that cost the most at
 /// the previous step, a documented budget that keeps the plan to O(F) fits.
 fn removal_plan(
-    features: &[EncodedColumn],
+    inputs: &AttackInputs<'_>,
     target: &Target<'_>,
     options: &ScanOptions,
     full: &Evaluation,
     first_step: Vec<(usize, Evaluation)>,
     progress: &dyn Progress,
 ) -> (Vec<RemovalStep>, bool) {
+    let features = inputs.features;
     let mut remaining: Vec<usize> = (0..features.len()).collect();
     let mut candidates = first_step;
     let mut steps = Vec::new();
@@ -161,7 +218,7 @@ fn removal_plan(
                 .filter_map(|&i| {
                     Some((
                         i,
-                        attack(features, &without(&remaining, i), target)?.evaluation,
+                        attack(inputs, &without(&remaining, i), target)?.evaluation,
                     ))
                 })
                 .collect()
@@ -185,17 +242,18 @@ fn chance_evaluation(full: &Evaluation) -> Evaluation {
 /// Whole-set AUC without and with the `added` features, and DeLong's test
 /// of the difference (same rows, same folds).
 pub fn added_features_effect(
-    features: &[EncodedColumn],
+    inputs: &AttackInputs<'_>,
     added: &[usize],
     target: &Target<'_>,
 ) -> Option<crate::report::AddedSourceEffect> {
+    let features = inputs.features;
     let all: Vec<usize> = (0..features.len()).collect();
     let base: Vec<usize> = all.iter().copied().filter(|i| !added.contains(i)).collect();
-    let with = attack(features, &all, target)?;
+    let with = attack(inputs, &all, target)?;
     let without = if base.is_empty() {
         None
     } else {
-        attack(features, &base, target)
+        attack(inputs, &base, target)
     };
     let auc_with = with.evaluation.interval();
     let Some(without) = without else {
