@@ -75,10 +75,10 @@ impl Progress for TerminalProgress {
         if !self.bars {
             return;
         }
-        if let Ok(state) = self.state.lock() {
-            if let Some(bar) = &state.bar {
-                bar.inc(steps);
-            }
+        if let Ok(state) = self.state.lock()
+            && let Some(bar) = &state.bar
+        {
+            bar.inc(steps);
         }
     }
 

@@ -286,13 +286,15 @@ fn check_outputs(args: &ScanArgs) -> Result<()> {
             );
         }
     }
-    if let Some(path) = args.json.as_ref().filter(|p| p.as_os_str() != "-") {
-        if path.exists() {
-            bail!(
-                "{}: file exists; pass --force to replace it",
-                path.display()
-            );
-        }
+    if let Some(path) = args
+        .json
+        .as_ref()
+        .filter(|p| p.as_os_str() != "-" && p.exists())
+    {
+        bail!(
+            "{}: file exists; pass --force to replace it",
+            path.display()
+        );
     }
     Ok(())
 }

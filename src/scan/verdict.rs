@@ -69,13 +69,13 @@ pub fn gate_failures(report: &crate::report::Report, whole_set_auc_low: f64) -> 
                 ));
             }
         }
-        if let Some(whole) = &result.whole_set {
-            if whole.auc_low >= whole_set_auc_low {
-                failures.push(format!(
-                    "the whole feature set rebuilds `{}` (AUC lower bound {:.3} ≥ {:.2})",
-                    result.protected, whole.auc_low, whole_set_auc_low
-                ));
-            }
+        if let Some(whole) = &result.whole_set
+            && whole.auc_low >= whole_set_auc_low
+        {
+            failures.push(format!(
+                "the whole feature set rebuilds `{}` (AUC lower bound {:.3} ≥ {:.2})",
+                result.protected, whole.auc_low, whole_set_auc_low
+            ));
         }
     }
     failures
