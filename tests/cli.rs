@@ -426,3 +426,215 @@ fn cps1985_ethnicity_is_scanned_as_multiclass() {
         assert!((a - b).abs() < 1e-9, "{name}: {a} vs {b}");
     }
 }
+
+fn demo_fixture() -> String {
+    format!(
+        "{}/fixtures/demo/lanternfield-4000.csv",
+        env!("CARGO_MANIFEST_DIR")
+    )
+}
+
+const FAST: [&str; 3] = ["--pairs", "none", "--quiet"];
+
+#[test]
+fn explain_gives_a_paragraph_and_rejects_unknown_features() {
+    let out = telltale(
+        &[
+            &[
+                "explain",
+                &demo_fixture(),
+                "-p",
+                "community",
+                "--feature",
+                "branch_area",
+            ][..],
+            &FAST,
+        ]
+        .concat(),
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("Knowing `branch_area` alone recovers `community` with AUC"),
+        "{text}"
+    );
+    assert!(text.contains("not a legal determination"));
+    let bad = telltale(&[
+        "explain",
+        &demo_fixture(),
+        "-p",
+        "community",
+        "--feature",
+        "branch_aera",
+        "--quiet",
+    ]);
+    assert_input_error(&bad, &["lanternfield-4000.csv", "`branch_aera`"]);
+}
+
+#[test]
+fn diff_flags_a_new_proxy_and_rejects_non_reports() {
+    let dir = scratch("diff");
+    let old = dir.join("old.json").display().to_string();
+    let new = dir.join("new.json").display().to_string();
+    let base = [
+        "scan",
+        &demo_fixture(),
+        "-p",
+        "community",
+        "--pairs",
+        "none",
+        "--quiet",
+    ];
+    telltale(&[&base[..], &["--exclude", "branch_area", "--json", &old]].concat());
+    telltale(&[&base[..], &["--json", &new]].concat());
+    let out = telltale(&["diff", &old, &new]);
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    assert!(String::from_utf8_lossy(&out.stdout).contains("branch_area"));
+    let same = telltale(&["diff", &new, &new]);
+    assert_eq!(same.status.code(), Some(0), "{}", stderr(&same));
+    let junk = write(&dir, "junk.json", b"{ not json");
+    assert_input_error(&telltale(&["diff", &junk, &new]), &["junk.json"]);
+}
+
+/// Splits the demo fixture into a base file without `months_at_address` and a
+/// new source keyed by `application_ref` (one key repeated, one unknown key).
+fn split_demo(dir: &Path) -> (String, String) {
+    let text = fs::read_to_string(demo_fixture()).unwrap();
+    let mut lines = text.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let key = header.iter().position(|h| *h == "application_ref").unwrap();
+    let moved = header
+        .iter()
+        .position(|h| *h == "months_at_address")
+        .unwrap();
+    let keep = |fields: &[&str]| -> String {
+        fields
+            .iter()
+            .enumerate()
+            .filter(|(i, _)| *i != moved)
+            .map(|(_, f)| *f)
+            .collect::<Vec<_>>()
+            .join(",")
+    };
+    let mut base = format!("{}\n", keep(&header));
+    let mut source = String::from("application_ref,months_at_address\n");
+    for (row, line) in lines.enumerate() {
+        let fields: Vec<&str> = line.split(',').collect();
+        base.push_str(&format!("{}\n", keep(&fields)));
+        if row % 10 != 9 {
+            source.push_str(&format!("{},{}\n", fields[key], fields[moved]));
+        }
+        if row == 0 {
+            source.push_str(&format!("{},{}\n", fields[key], fields[moved]));
+        }
+    }
+    source.push_str("LM-0000000,12\n");
+    (
+        write(dir, "base.csv", base.as_bytes()),
+        write(dir, "new.csv", source.as_bytes()),
+    )
+}
+
+#[test]
+fn add_source_counts_keys_and_tests_what_the_new_columns_add() {
+    let dir = scratch("add-source");
+    let (base, source) = split_demo(&dir);
+    let (out, json) = scan_json(
+        &base,
+        &[
+            &[
+                "-p",
+                "community",
+                "--add-source",
+                &source,
+                "--key",
+                "application_ref",
+            ][..],
+            &FAST,
+        ]
+        .concat(),
+    );
+    assert!(
+        out.status.code().is_some_and(|c| c <= 1),
+        "{}",
+        stderr(&out)
+    );
+    let added = &json["added_source"];
+    assert_eq!(
+        added["new_columns"],
+        serde_json::json!(["months_at_address"])
+    );
+    assert_eq!(added["base_rows"], 4000);
+    assert_eq!(added["matched_rows"], 3600);
+    assert_eq!(added["unmatched_base_rows"], 400);
+    assert_eq!(added["unmatched_source_rows"], 1);
+    assert_eq!(added["duplicate_keys_in_source"], 1);
+    let effect = &added["per_protected"][0];
+    assert!(
+        effect["auc_with"]["auc"].as_f64().unwrap()
+            > effect["auc_without"]["auc"].as_f64().unwrap()
+    );
+    assert!(effect["p_value"].as_f64().is_some());
+    let features = json["results"][0]["features"].as_array().unwrap();
+    assert!(
+        features.iter().all(|f| f["name"] != "application_ref"),
+        "the key must not be a feature"
+    );
+    let missing_key = telltale(&[
+        "scan",
+        &base,
+        "-p",
+        "community",
+        "--add-source",
+        &source,
+        "--key",
+        "nope",
+        "--quiet",
+    ]);
+    assert_input_error(&missing_key, &["`nope`"]);
+}
+
+#[test]
+fn policy_acceptance_and_expiry_drive_the_exit_status() {
+    let dir = scratch("policy");
+    let accept = |expires: &str| {
+        format!(
+            "[[accept]]\nfeature = \"branch_area\"\nreason = \"Branch staffing model; reviewed\"\nreviewer = \"A. Quill\"\nexpires = \"{expires}\"\n"
+        )
+    };
+    let data = demo_fixture();
+    let args = |policy: &str| -> Vec<String> {
+        [
+            &[
+                "scan",
+                data.as_str(),
+                "-p",
+                "community",
+                "--whole-set-auc",
+                "1.0",
+                "--policy",
+                policy,
+            ][..],
+            &FAST,
+        ]
+        .concat()
+        .into_iter()
+        .map(String::from)
+        .collect()
+    };
+    let run = |policy: &str| {
+        let owned = args(policy);
+        telltale(&owned.iter().map(String::as_str).collect::<Vec<_>>())
+    };
+    let valid = write(&dir, "valid.toml", accept("2999-12-31").as_bytes());
+    let out = run(&valid);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let expired = write(&dir, "expired.toml", accept("2001-01-31").as_bytes());
+    assert_eq!(run(&expired).status.code(), Some(1));
+    let broken = write(
+        &dir,
+        "broken.toml",
+        b"[thresholds]\nproxy_auc_low = 0.7\nsurprise = 1\n",
+    );
+    assert_input_error(&run(&broken), &["broken.toml", "line 3"]);
+}
