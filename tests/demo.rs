@@ -2,10 +2,9 @@
 //! every row is drawn given its community, so the generator knows each row's
 //! true log-likelihood ratio and hence the best AUC any attacker can reach.
 
-use std::path::Path;
 use telltale::data::EncodedTable;
-use telltale::data::demo::{DemoSpec, generate};
-use telltale::data::prepare::{EncodeOptions, Roles, encode_table, plan_columns};
+use telltale::data::demo::{DemoSpec, encode_demo, generate};
+use telltale::data::prepare::EncodeOptions;
 use telltale::report::{Flag, ProtectedResult};
 use telltale::scan::{ScanOptions, Silent, scan};
 use telltale::stats::auc::auc_from_scores;
@@ -16,25 +15,7 @@ fn encoded(rows: usize, seed: u64) -> (EncodedTable, f64) {
         seed,
         extra_noise: 0,
     });
-    let columns: Vec<String> = data
-        .frame
-        .get_column_names()
-        .iter()
-        .map(|n| n.to_string())
-        .collect();
-    let roles = Roles {
-        protected: vec!["community".into()],
-        ..Roles::default()
-    };
-    let plan = plan_columns(Path::new("demo"), &columns, &roles).unwrap();
-    let table = encode_table(
-        Path::new("demo"),
-        &data.frame,
-        &plan,
-        &roles,
-        &EncodeOptions::default(),
-    )
-    .unwrap();
+    let table = encode_demo(&data, &EncodeOptions::default()).unwrap();
     let valic: Vec<bool> = {
         let p = &table.protected[0];
         p.codes

@@ -3,8 +3,8 @@
 use super::Status;
 use super::progress::TerminalProgress;
 use super::scan::{ScanSettingsArgs, command_line, emit};
-use crate::data::demo::{DemoSpec, generate};
-use crate::data::prepare::{EncodeOptions, Roles, encode_table, plan_columns};
+use crate::data::demo::{DemoSpec, encode_demo, generate};
+use crate::data::prepare::EncodeOptions;
 use crate::report::DatasetInfo;
 use crate::scan;
 use anyhow::{Context, Result, bail};
@@ -70,30 +70,18 @@ pub fn run(args: &DemoArgs) -> Result<Status> {
     };
     let progress = TerminalProgress::with_timings(args.quiet, args.timings);
     let options = args.settings.options(args.folds, args.seed, 10)?;
-    let source = Path::new("demo");
-    let columns: Vec<String> = data
-        .frame
-        .get_column_names()
-        .iter()
-        .map(|n| n.to_string())
-        .collect();
-    let roles = Roles {
-        protected: vec!["community".to_string()],
-        ..Roles::default()
-    };
-    let plan = plan_columns(source, &columns, &roles)?;
     let encode = EncodeOptions {
         bins: args.bins,
         min_class_rows: args.folds,
         seed: args.seed,
         ..EncodeOptions::default()
     };
-    let table = encode_table(source, &data.frame, &plan, &roles, &encode)?;
+    let table = encode_demo(&data, &encode)?;
     let dataset = DatasetInfo {
         source: format!("demo:seed={}:rows={}", args.seed, args.rows),
         rows: args.rows,
         rows_used: table.rows(),
-        columns: columns.len(),
+        columns: data.frame.width(),
         sha256: None,
         rows_dropped_missing_protected: 0,
         sample: None,

@@ -221,6 +221,27 @@ fn bayes_log_odds(
     area_term + commute_term + pair_term + missing_term
 }
 
+/// Encodes generated demo data for a scan of `community` (no file involved).
+pub fn encode_demo(
+    data: &DemoData,
+    options: &super::prepare::EncodeOptions,
+) -> Result<super::EncodedTable, crate::error::InputError> {
+    use super::prepare::{Roles, encode_table, plan_columns};
+    let source = std::path::Path::new("demo");
+    let columns: Vec<String> = data
+        .frame
+        .get_column_names()
+        .iter()
+        .map(|n| n.to_string())
+        .collect();
+    let roles = Roles {
+        protected: vec!["community".to_string()],
+        ..Roles::default()
+    };
+    let plan = plan_columns(source, &columns, &roles)?;
+    encode_table(source, &data.frame, &plan, &roles, options)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
