@@ -76,8 +76,11 @@ fn scan_feature(
     );
     let info = summarize(&table);
     let columns = [column];
-    let mut evaluations: Vec<(&'static str, Evaluation, Vec<[f64; 2]>)> = Vec::new();
+    let mut evaluations: Vec<(&'static str, Evaluation)> = Vec::new();
     let mut heldout = None;
+    // Scores of the best surrogate so far (ties go to the later one, as `max_by`
+    // picks the last maximum); only its ROC curve is ever reported.
+    let mut best_scores: Option<(f64, crate::surrogate::Scores)> = None;
     for model in single_surrogates() {
         let Ok(scores) = cross_fit(
             model.as_ref(),
@@ -93,13 +96,17 @@ fn scan_feature(
             if model.name() == "frequency" {
                 heldout = Some(evaluation.heldout_info_nats);
             }
-            evaluations.push((model.name(), evaluation, roc(&scores, target)));
+            let auc = evaluation.estimate.auc;
+            if best_scores.as_ref().is_none_or(|(best, _)| auc >= *best) {
+                best_scores = Some((auc, scores));
+            }
+            evaluations.push((model.name(), evaluation));
         }
     }
     let best = evaluations
         .iter()
         .max_by(|a, b| a.1.estimate.auc.total_cmp(&b.1.estimate.auc));
-    let interval = best.map(|(_, e, _)| e.interval());
+    let interval = best.map(|(_, e)| e.interval());
     let flag = flag_for(interval.map(|i| i.auc_low), info.ami, &options.thresholds);
     let result = FeatureResult {
         name: column.name.clone(),
@@ -115,16 +122,16 @@ fn scan_feature(
         auc_low: interval.map(|i| i.auc_low),
         auc_high: interval.map(|i| i.auc_high),
         auc_se: interval.map(|i| i.auc_se),
-        hand_till: best.and_then(|(_, e, _)| e.hand_till),
-        ber: best.map(|(_, e, _)| e.ber),
-        surrogate: best.map(|(name, _, _)| (*name).to_string()),
+        hand_till: best.and_then(|(_, e)| e.hand_till),
+        ber: best.map(|(_, e)| e.ber),
+        surrogate: best.map(|(name, _)| (*name).to_string()),
         surrogates: evaluations
             .iter()
-            .map(|(name, e, _)| ((*name).to_string(), e.estimate.auc))
+            .map(|(name, e)| ((*name).to_string(), e.estimate.auc))
             .collect(),
         surrogate_intervals: evaluations
             .iter()
-            .map(|(name, e, _)| ((*name).to_string(), e.interval()))
+            .map(|(name, e)| ((*name).to_string(), e.interval()))
             .collect::<BTreeMap<_, _>>(),
         flag,
         accepted: None,
@@ -132,6 +139,6 @@ fn scan_feature(
             .then(|| composition(column, &table, target, options.min_cell)),
         roc: None,
     };
-    let roc = best.map(|(_, _, r)| r.clone());
+    let roc = best_scores.map(|(_, scores)| roc(&scores, target));
     (result, roc)
 }
