@@ -284,6 +284,37 @@ pub fn truncate(text: &str, max: usize) -> String {
     format!("{head_text}…{tail_text}")
 }
 
+/// "Kind: …; positive class: …; classes: a (n), …; entropy … nats." for one
+/// attribute, every label passed through the format's `escape`.
+#[must_use]
+pub fn attribute_summary(
+    result: &ProtectedResult,
+    min_cell: u64,
+    escape: fn(&str) -> String,
+) -> String {
+    let levels: Vec<String> = result
+        .levels
+        .iter()
+        .map(|l| {
+            let count = l
+                .count
+                .map_or_else(|| suppressed(min_cell), |c| c.to_string());
+            format!("{} ({})", escape(&l.label), escape(&count))
+        })
+        .collect();
+    let positive = result
+        .positive
+        .as_deref()
+        .map(|p| format!("; positive class: {}", escape(p)))
+        .unwrap_or_default();
+    format!(
+        "Kind: {}{positive}; classes: {}; entropy {:.4} nats.",
+        escape(&result.kind),
+        levels.join(", "),
+        result.entropy_nats
+    )
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

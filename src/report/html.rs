@@ -152,10 +152,10 @@ fn settings_section(report: &Report) -> String {
 
 fn protected_section(result: &ProtectedResult, report: &Report) -> String {
     let mut out = format!(
-        r#"<section class="protected"><h2>Protected attribute: {}</h2><p class="headline">{}</p>{}"#,
+        r#"<section class="protected"><h2>Protected attribute: {}</h2><p class="headline">{}</p><p class="meta">{}</p>"#,
         esc(&result.protected),
         esc(&result.headline),
-        attribute_meta(result, report.settings.min_cell)
+        format::attribute_summary(result, report.settings.min_cell, esc)
     );
     out.push_str(&features_part(result, report));
     out.push_str(&pairs_part(result));
@@ -165,30 +165,6 @@ fn protected_section(result: &ProtectedResult, report: &Report) -> String {
     out.push_str(&compositions_part(result, report.settings.min_cell));
     out.push_str("</section>\n");
     out
-}
-
-fn attribute_meta(result: &ProtectedResult, min_cell: u64) -> String {
-    let levels: Vec<String> = result
-        .levels
-        .iter()
-        .map(|l| {
-            let count = l
-                .count
-                .map_or_else(|| format::suppressed(min_cell), |c| c.to_string());
-            format!("{} ({})", esc(&l.label), esc(&count))
-        })
-        .collect();
-    let positive = result
-        .positive
-        .as_deref()
-        .map(|p| format!("; positive class: {}", esc(p)))
-        .unwrap_or_default();
-    format!(
-        r#"<p class="meta">Kind: {}{positive}; classes: {}; entropy {:.4} nats.</p>"#,
-        esc(&result.kind),
-        levels.join(", "),
-        result.entropy_nats
-    )
 }
 
 fn features_part(result: &ProtectedResult, report: &Report) -> String {

@@ -100,7 +100,12 @@ fn protected_section(result: &ProtectedResult, report: &Report) -> String {
         escape_inline(&result.protected)
     );
     out.push_str(&format!("**{}**\n\n", escape_inline(&result.headline)));
-    out.push_str(&attribute_summary(result, report.settings.min_cell));
+    out.push_str(&format::attribute_summary(
+        result,
+        report.settings.min_cell,
+        escape_inline,
+    ));
+    out.push_str("\n\n");
     out.push_str("### Features ranked by AUC\n\n");
     let rows: Vec<Vec<String>> = format::ranked_features(result)
         .into_iter()
@@ -113,31 +118,6 @@ fn protected_section(result: &ProtectedResult, report: &Report) -> String {
     }
     out.push_str(&compositions_section(result, report.settings.min_cell));
     out
-}
-
-/// Kind, positive class and class counts of the attribute.
-fn attribute_summary(result: &ProtectedResult, min_cell: u64) -> String {
-    let levels: Vec<String> = result
-        .levels
-        .iter()
-        .map(|l| {
-            let count = l
-                .count
-                .map_or_else(|| format::suppressed(min_cell), |c| c.to_string());
-            format!("{} ({})", escape_inline(&l.label), escape_inline(&count))
-        })
-        .collect();
-    let positive = result
-        .positive
-        .as_deref()
-        .map(|p| format!("; positive class: {}", escape_inline(p)))
-        .unwrap_or_default();
-    format!(
-        "Kind: {}{positive}; classes: {}; entropy {:.4} nats.\n\n",
-        escape_inline(&result.kind),
-        levels.join(", "),
-        result.entropy_nats
-    )
 }
 
 fn pairs_section(result: &ProtectedResult) -> String {
