@@ -18,6 +18,7 @@
 //! Missing values get the code after the last bin.
 
 use super::{EncodedColumn, FeatureKind};
+use crate::keys::KeyIndex;
 use std::collections::HashMap;
 
 /// The label given to the missing level of every column.
@@ -223,17 +224,17 @@ pub fn encode_integer_coded(name: &str, values: Vec<f64>) -> EncodedColumn {
 /// columns, where `levels_a × levels_b` would not fit in memory.
 #[must_use]
 pub fn combine_codes(a: &[u32], b: &[u32], b_levels: u32) -> (Vec<u32>, u32) {
-    let mut index: HashMap<u64, u32> = HashMap::new();
+    let mut index = KeyIndex::with_limit(a.len());
     let codes = a
         .iter()
         .zip(b)
         .map(|(&x, &y)| {
             let key = u64::from(x) * u64::from(b_levels) + u64::from(y);
-            let next = index.len() as u32;
-            *index.entry(key).or_insert(next)
+            // Never `None`: there are no more distinct keys than rows.
+            index.number(key).unwrap_or(u32::MAX)
         })
         .collect();
-    (codes, index.len() as u32)
+    (codes, index.keys().len() as u32)
 }
 
 #[cfg(test)]

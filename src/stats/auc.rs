@@ -1,8 +1,9 @@
 //! Area under the ROC curve: Mann–Whitney point estimate, DeLong variance and
 //! interval, comparison of two AUCs, and the empirical ROC curve.
 
-use super::ranks::{score_of_key, sort_by_score, sorted_keys, tie_groups};
+use super::ranks::{order_key, score_of_key, sort_by_score, sorted_keys, tie_groups};
 use super::special::{Z_975, two_sided_p_value};
+use crate::keys::KeyIndex;
 
 /// An AUC with its estimated variance and 95 % normal-theory interval.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -95,6 +96,38 @@ impl ScoreTable {
         if scores.len() != positive.len() {
             return None;
         }
+        let limit = (scores.len() / 8).max(GROUPED_DISTINCT_MIN);
+        Some(
+            Self::grouped(scores, positive, limit)
+                .unwrap_or_else(|| Self::sorted(scores, positive)),
+        )
+    }
+
+    /// Counting path for scores with few distinct values (every surrogate over
+    /// codes, and logistic scores of rounded numbers): one hashing pass counts
+    /// each class per distinct score, then only the distinct scores are
+    /// sorted. `None` once more than `limit` distinct scores are seen.
+    fn grouped(scores: &[f64], positive: &[bool], limit: usize) -> Option<Self> {
+        let mut index = KeyIndex::with_limit(limit);
+        let mut counts: Vec<[usize; 2]> = Vec::new();
+        for (&score, &is_positive) in scores.iter().zip(positive) {
+            let group = index.number(order_key(score))? as usize;
+            if group == counts.len() {
+                counts.push([0, 0]);
+            }
+            counts[group][usize::from(is_positive)] += 1;
+        }
+        let mut order: Vec<usize> = (0..counts.len()).collect();
+        order.sort_unstable_by_key(|&g| index.keys()[g]);
+        let mut table = Self::default();
+        for g in order {
+            table.push(index.keys()[g], counts[g][0], counts[g][1]);
+        }
+        Some(table)
+    }
+
+    /// Sorting path: each class's scores are sorted on their own and the two runs merged.
+    fn sorted(scores: &[f64], positive: &[bool]) -> Self {
         let of_class = |class: bool| {
             sorted_keys(
                 scores
@@ -120,7 +153,7 @@ impl ScoreTable {
             i += pos;
             j += neg;
         }
-        Some(table)
+        table
     }
 
     /// Appends a category with `neg` negatives and `pos` positives.
@@ -140,6 +173,10 @@ impl ScoreTable {
         score_of_key(self.keys[category])
     }
 }
+
+/// Fewest distinct scores the counting path of [`ScoreTable`] accepts before
+/// it gives way to sorting (beyond an eighth of the rows, sorting is cheaper).
+const GROUPED_DISTINCT_MIN: usize = 1 << 16;
 
 /// How many leading keys of ascending `sorted` equal `key`.
 fn run_length(sorted: &[u64], key: u64) -> usize {
@@ -533,6 +570,20 @@ mod tests {
             if let (Some(a), Some(b)) = (auc_from_scores(&scores, &positive), auc_from_scores(&flipped, &positive)) {
                 prop_assert!((a + b - 1.0).abs() < 1e-12);
             }
+        }
+
+        // The counting path of the rating table (few distinct scores) and the
+        // sorting path must build the same table: same tie groups, same order,
+        // same counts, with −0 and +0 tied.
+        #[test]
+        fn counting_and_sorting_build_the_same_rating_table((mut scores, positive) in scores_and_labels()) {
+            if let Some(s) = scores.first_mut() { *s = -0.0; }
+            let sorted = ScoreTable::sorted(&scores, &positive);
+            let grouped = ScoreTable::grouped(&scores, &positive, scores.len()).unwrap();
+            prop_assert_eq!(&grouped.keys, &sorted.keys);
+            prop_assert_eq!(&grouped.negatives, &sorted.negatives);
+            prop_assert_eq!(&grouped.positives, &sorted.positives);
+            prop_assert!(ScoreTable::grouped(&scores, &positive, sorted.len() - 1).is_none());
         }
 
         // The AUC depends on the scores only through their order (Bamber 1975,

@@ -816,7 +816,7 @@ impl Surrogate for BoostedSurrogate {
         n_classes: usize,
         train: &[usize],
     ) -> Result<Box<dyn Fitted>, SurrogateError> {
-        check_inputs(self.name(), columns, n_classes, train)?;
+        check_inputs(self.name(), columns, n_classes, train.len())?;
         if !(1..=255).contains(&self.max_bins) || self.max_leaf_nodes < 2 {
             return Err(SurrogateError {
                 model: self.name(),

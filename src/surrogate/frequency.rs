@@ -6,12 +6,13 @@
 //! machine learning", ECAI): p(a | x) = (n_xa + m·q_a) / (n_x + m), where q is
 //! the prior the cell falls back to. A level never seen in training gets q.
 
-use super::{Fitted, Surrogate, SurrogateError, check_inputs, class_shares, normalise};
+use super::{Fitted, Scores, Surrogate, SurrogateError, check_inputs, class_shares, normalise};
 use crate::data::EncodedColumn;
-use std::collections::HashMap;
+use crate::data::encode::combine_codes;
 
-/// Pair tables with at most this many cells are indexed densely; larger ones by hash.
-const DENSE_PAIR_CELLS: u64 = 1 << 22;
+/// Pair grids with at most this many cells are indexed directly; larger ones
+/// are numbered over their observed combinations.
+const DENSE_PAIR_CELLS: u64 = 1 << 16;
 
 /// The frequency surrogate's parameters.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -29,140 +30,277 @@ impl Default for FrequencySurrogate {
     }
 }
 
-/// Smoothed posterior table of one column: `n_levels × n_classes`, row-major.
-#[derive(Debug, Clone)]
-struct LevelTable {
-    n_classes: usize,
-    proba: Vec<f64>,
-}
-
-impl LevelTable {
-    /// Counts classes per level on `train` and smooths each level toward `prior`.
-    fn fit(column: &EncodedColumn, target: &[u32], prior: &[f64], m: f64, train: &[usize]) -> Self {
-        let k = prior.len();
-        let mut counts = vec![0.0; column.n_levels as usize * k];
-        for &row in train {
-            counts[column.codes[row] as usize * k + target[row] as usize] += 1.0;
-        }
-        let proba = counts
-            .chunks_exact(k)
-            .flat_map(|cell| smoothed(cell, prior, m))
-            .collect();
-        Self {
-            n_classes: k,
-            proba,
-        }
-    }
-
-    fn posterior(&self, code: u32) -> &[f64] {
-        let start = code as usize * self.n_classes;
-        &self.proba[start..start + self.n_classes]
-    }
-}
-
-/// m-estimate of one cell's class shares: (n_a + m·q_a) / (n + m); `q` itself when empty.
-fn smoothed(counts: &[f64], prior: &[f64], m: f64) -> Vec<f64> {
+/// m-estimate of one cell's class shares into `out`: (n_a + m·q_a) / (n + m);
+/// `q` itself when the cell is empty and m = 0.
+fn smooth_into(counts: &[f64], prior: &[f64], m: f64, out: &mut [f64]) {
     let n: f64 = counts.iter().sum();
     if n + m <= 0.0 {
-        return prior.to_vec();
+        out.copy_from_slice(prior);
+        return;
+    }
+    for ((o, &c), &q) in out.iter_mut().zip(counts).zip(prior) {
+        *o = (c + m * q) / (n + m);
+    }
+}
+
+/// Naive-Bayes combination of two single-column posteriors into `out`:
+/// p(a | x, y) ∝ p(a | x) p(a | y) / π_a (x and y independent given a).
+fn combine_into(left: &[f64], right: &[f64], prior: &[f64], out: &mut [f64]) {
+    for (((o, &l), &r), &p) in out.iter_mut().zip(left).zip(right).zip(prior) {
+        *o = if p > 0.0 { l * r / p } else { 0.0 };
+    }
+    normalise(out);
+}
+
+/// Working buffers for one posterior: smoothed left and right shares and the back-off.
+struct Scratch {
+    left: Vec<f64>,
+    right: Vec<f64>,
+    back_off: Vec<f64>,
+}
+
+impl Scratch {
+    fn new(k: usize) -> Self {
+        Self {
+            left: vec![0.0; k],
+            right: vec![0.0; k],
+            back_off: vec![0.0; k],
+        }
+    }
+}
+
+/// [`Scratch`] plus the training counts of left, right and cell.
+struct Work {
+    counts: [Vec<f64>; 3],
+    scratch: Scratch,
+}
+
+impl Work {
+    fn new(k: usize) -> Self {
+        Self {
+            counts: [vec![0.0; k], vec![0.0; k], vec![0.0; k]],
+            scratch: Scratch::new(k),
+        }
+    }
+}
+
+/// The frequency posterior of one row from its training counts: the single
+/// column's smoothed shares, or for a pair the cell's shares smoothed toward
+/// the naive-Bayes combination of the two singles (the combination itself
+/// when the cell was never seen in training).
+fn posterior(
+    singles: [&[f64]; 2],
+    cell: Option<&[f64]>,
+    prior: &[f64],
+    m: f64,
+    scratch: &mut Scratch,
+    out: &mut [f64],
+) {
+    let Some(cell) = cell else {
+        smooth_into(singles[0], prior, m, out);
+        return;
+    };
+    smooth_into(singles[0], prior, m, &mut scratch.left);
+    smooth_into(singles[1], prior, m, &mut scratch.right);
+    combine_into(&scratch.left, &scratch.right, prior, &mut scratch.back_off);
+    if cell.iter().sum::<f64>() > 0.0 {
+        smooth_into(cell, &scratch.back_off, m, out);
+    } else {
+        out.copy_from_slice(&scratch.back_off);
+    }
+}
+
+/// The `k` counts of `code` in a `levels × k` table.
+fn counts_of(table: &[f64], code: u32, k: usize) -> &[f64] {
+    &table[code as usize * k..(code as usize + 1) * k]
+}
+
+/// Class counts per code over the training rows of one fit: `levels × k`.
+fn train_counts(
+    codes: &[u32],
+    levels: usize,
+    target: &[u32],
+    k: usize,
+    train: &[usize],
+) -> Vec<f64> {
+    let mut counts = vec![0.0; levels * k];
+    for &row in train {
+        counts[codes[row] as usize * k + target[row] as usize] += 1.0;
     }
     counts
-        .iter()
-        .zip(prior)
-        .map(|(&c, &q)| (c + m * q) / (n + m))
-        .collect()
 }
 
-/// Naive-Bayes combination of two single-column posteriors:
-/// p(a | x, y) ∝ p(a | x) p(a | y) / π_a (x and y independent given a).
-fn combine_singles(left: &[f64], right: &[f64], prior: &[f64]) -> Vec<f64> {
-    let mut combined: Vec<f64> = left
-        .iter()
-        .zip(right)
-        .zip(prior)
-        .map(|((&l, &r), &p)| if p > 0.0 { l * r / p } else { 0.0 })
-        .collect();
-    normalise(&mut combined);
-    combined
+/// Cell code per row of a pair of columns: the grid position when the grid
+/// is small, else the observed combinations numbered in order of appearance.
+struct PairCells {
+    codes: Vec<u32>,
+    cells: usize,
+    on_grid: bool,
 }
 
-/// Class counts of the observed pair cells, densely or by hash.
-enum PairCounts {
-    Dense(Vec<f64>),
-    Sparse(HashMap<u64, Vec<f64>>),
+impl PairCells {
+    fn new(left: &EncodedColumn, right: &EncodedColumn) -> Self {
+        let grid = u64::from(left.n_levels) * u64::from(right.n_levels);
+        if grid <= DENSE_PAIR_CELLS {
+            let codes = left
+                .codes
+                .iter()
+                .zip(&right.codes)
+                .map(|(&a, &b)| a * right.n_levels + b)
+                .collect();
+            Self {
+                codes,
+                cells: grid as usize,
+                on_grid: true,
+            }
+        } else {
+            let (codes, cells) = combine_codes(&left.codes, &right.codes, right.n_levels);
+            Self {
+                codes,
+                cells: cells as usize,
+                on_grid: false,
+            }
+        }
+    }
 }
 
-/// A fitted frequency model.
+/// Codes of the columns the frequency model counts over: the single column,
+/// or the two columns and their pair cell.
+struct CountedCodes<'a> {
+    singles: Vec<(&'a [u32], usize)>,
+    cell: Option<(Vec<u32>, usize)>,
+    /// The right column's levels when pair cells are grid positions.
+    grid_right: Option<u32>,
+}
+
+impl<'a> CountedCodes<'a> {
+    fn new(columns: &[&'a EncodedColumn]) -> Self {
+        let pair = (columns.len() == 2).then(|| PairCells::new(columns[0], columns[1]));
+        Self {
+            singles: columns
+                .iter()
+                .map(|c| (c.codes.as_slice(), c.n_levels as usize))
+                .collect(),
+            grid_right: pair
+                .as_ref()
+                .filter(|p| p.on_grid)
+                .map(|_| columns[1].n_levels),
+            cell: pair.map(|p| (p.codes, p.cells)),
+        }
+    }
+
+    /// The single-column codes of `row` (the second is 0 for one column).
+    fn of_row(&self, row: usize) -> [u32; 2] {
+        [
+            self.singles[0].0[row],
+            self.singles.get(1).map_or(0, |(codes, _)| codes[row]),
+        ]
+    }
+}
+
+/// A fitted frequency model: training counts per level (and per pair cell).
 struct FittedFrequency {
     prior: Vec<f64>,
     smoothing: f64,
-    singles: Vec<LevelTable>,
-    /// Present for a pair of columns; `right_levels` forms the cell key.
-    pair: Option<(PairCounts, u64)>,
-}
-
-/// Key of the pair cell of `row`: left code × right levels + right code.
-fn pair_key(columns: &[&EncodedColumn], row: usize, right_levels: u64) -> u64 {
-    u64::from(columns[0].codes[row]) * right_levels + u64::from(columns[1].codes[row])
-}
-
-impl FittedFrequency {
-    /// Appends the posterior of `row` to `out`.
-    fn push_posterior(&self, columns: &[&EncodedColumn], row: usize, out: &mut Vec<f64>) {
-        let left = self.singles[0].posterior(columns[0].codes[row]);
-        let Some((counts, right_levels)) = &self.pair else {
-            out.extend_from_slice(left);
-            return;
-        };
-        let right = self.singles[1].posterior(columns[1].codes[row]);
-        let back_off = combine_singles(left, right, &self.prior);
-        let key = pair_key(columns, row, *right_levels);
-        let k = self.prior.len();
-        let cell = match counts {
-            PairCounts::Dense(all) => Some(&all[key as usize * k..(key as usize + 1) * k]),
-            PairCounts::Sparse(map) => map.get(&key).map(Vec::as_slice),
-        };
-        match cell {
-            Some(c) => out.extend(smoothed(c, &back_off, self.smoothing)),
-            None => out.extend(back_off),
-        }
-    }
+    singles: Vec<Vec<f64>>,
+    /// Cell counts of the pair, with the cell codes of every row.
+    cell: Option<(Vec<f64>, Vec<u32>)>,
 }
 
 impl Fitted for FittedFrequency {
     fn predict_proba(&self, columns: &[&EncodedColumn], rows: &[usize]) -> Vec<f64> {
-        let mut out = Vec::with_capacity(rows.len() * self.prior.len());
-        for &row in rows {
-            self.push_posterior(columns, row, &mut out);
+        let k = self.prior.len();
+        let mut scratch = Scratch::new(k);
+        let mut out = vec![0.0; rows.len() * k];
+        for (&row, p) in rows.iter().zip(out.chunks_exact_mut(k)) {
+            let single = |i: usize| counts_of(&self.singles[i], columns[i].codes[row], k);
+            let cell = self
+                .cell
+                .as_ref()
+                .map(|(table, cells)| counts_of(table, cells[row], k));
+            let right = if cell.is_some() { single(1) } else { single(0) };
+            posterior(
+                [single(0), right],
+                cell,
+                &self.prior,
+                self.smoothing,
+                &mut scratch,
+                p,
+            );
         }
         out
     }
 }
 
-/// Class counts of every pair cell seen in `train`.
-fn count_pairs(
-    columns: &[&EncodedColumn],
-    target: &[u32],
+/// Class counts per (code, fold) over all rows: the training counts of any
+/// fold are the total minus that fold's, so one pass serves every fold.
+struct FoldCounts {
+    n_folds: usize,
     k: usize,
-    train: &[usize],
-) -> (PairCounts, u64) {
-    let right_levels = u64::from(columns[1].n_levels);
-    let cells = u64::from(columns[0].n_levels) * right_levels;
-    let key = |row: usize| pair_key(columns, row, right_levels);
-    let counts = if cells <= DENSE_PAIR_CELLS {
-        let mut dense = vec![0.0; cells as usize * k];
-        for &row in train {
-            dense[key(row) as usize * k + target[row] as usize] += 1.0;
+    /// `levels × n_folds × k`.
+    counts: Vec<u32>,
+}
+
+impl FoldCounts {
+    fn new(
+        codes: &[u32],
+        levels: usize,
+        target: &[u32],
+        folds: &[u8],
+        n_folds: usize,
+        k: usize,
+    ) -> Self {
+        let mut counts = vec![0u32; levels * n_folds * k];
+        for ((&code, &class), &fold) in codes.iter().zip(target).zip(folds) {
+            counts[(code as usize * n_folds + fold as usize) * k + class as usize] += 1;
         }
-        PairCounts::Dense(dense)
-    } else {
-        let mut sparse: HashMap<u64, Vec<f64>> = HashMap::new();
-        for &row in train {
-            sparse.entry(key(row)).or_insert_with(|| vec![0.0; k])[target[row] as usize] += 1.0;
+        Self { n_folds, k, counts }
+    }
+
+    /// Class counts of `code` in every fold but `fold`, into `out`.
+    fn training(&self, code: u32, fold: u8, out: &mut [f64]) {
+        let start = code as usize * self.n_folds * self.k;
+        let block = &self.counts[start..start + self.n_folds * self.k];
+        out.fill(0.0);
+        for (f, per_fold) in block.chunks_exact(self.k).enumerate() {
+            if f != usize::from(fold) {
+                out.iter_mut()
+                    .zip(per_fold)
+                    .for_each(|(o, &c)| *o += f64::from(c));
+            }
         }
-        PairCounts::Sparse(sparse)
-    };
-    (counts, right_levels)
+    }
+}
+
+/// Class shares of the training rows of each fold (all rows but the fold's).
+fn training_priors(target: &[u32], k: usize, folds: &[u8], n_folds: usize) -> Vec<Vec<f64>> {
+    let mut per_fold = vec![vec![0.0; k]; n_folds];
+    for (&class, &fold) in target.iter().zip(folds) {
+        per_fold[usize::from(fold)][class as usize] += 1.0;
+    }
+    let total: Vec<f64> = (0..k)
+        .map(|c| per_fold.iter().map(|f| f[c]).sum())
+        .collect();
+    per_fold
+        .iter()
+        .map(|held_out| {
+            let mut prior: Vec<f64> = total.iter().zip(held_out).map(|(t, h)| t - h).collect();
+            normalise(&mut prior);
+            prior
+        })
+        .collect()
+}
+
+impl FrequencySurrogate {
+    fn check(&self, columns: &[&EncodedColumn]) -> Result<(), SurrogateError> {
+        if columns.len() > 2 || self.smoothing.is_nan() || self.smoothing < 0.0 {
+            return Err(SurrogateError {
+                model: self.name(),
+                reason: "needs one or two columns and a non-negative smoothing".to_string(),
+            });
+        }
+        Ok(())
+    }
 }
 
 impl Surrogate for FrequencySurrogate {
@@ -180,25 +318,133 @@ impl Surrogate for FrequencySurrogate {
         n_classes: usize,
         train: &[usize],
     ) -> Result<Box<dyn Fitted>, SurrogateError> {
-        check_inputs(self.name(), columns, n_classes, train)?;
-        if columns.len() > 2 || self.smoothing.is_nan() || self.smoothing < 0.0 {
-            return Err(SurrogateError {
-                model: self.name(),
-                reason: "needs one or two columns and a non-negative smoothing".to_string(),
-            });
-        }
-        let prior = class_shares(target, n_classes, train);
-        let singles = columns
-            .iter()
-            .map(|c| LevelTable::fit(c, target, &prior, self.smoothing, train))
-            .collect();
-        let pair = (columns.len() == 2).then(|| count_pairs(columns, target, n_classes, train));
+        check_inputs(self.name(), columns, n_classes, train.len())?;
+        self.check(columns)?;
+        let codes = CountedCodes::new(columns);
+        let count = |(codes, levels): (&[u32], usize)| {
+            train_counts(codes, levels, target, n_classes, train)
+        };
         Ok(Box::new(FittedFrequency {
-            prior,
+            prior: class_shares(target, n_classes, train),
             smoothing: self.smoothing,
-            singles,
-            pair,
+            singles: codes.singles.iter().map(|&c| count(c)).collect(),
+            cell: codes
+                .cell
+                .map(|(cells, levels)| (count((&cells, levels)), cells)),
         }))
+    }
+
+    /// The same posteriors as fitting fold by fold, from one counting pass:
+    /// class counts per (code, fold), each fold's training counts being the
+    /// total minus its own. When the cells are few, each (cell, fold)
+    /// posterior is computed once and copied to its rows.
+    fn out_of_fold(
+        &self,
+        columns: &[&EncodedColumn],
+        target: &[u32],
+        n_classes: usize,
+        folds: &[u8],
+        n_folds: usize,
+    ) -> Result<Scores, SurrogateError> {
+        check_inputs(self.name(), columns, n_classes, folds.len())?;
+        self.check(columns)?;
+        let k = n_classes;
+        let codes = CountedCodes::new(columns);
+        let count = |(codes, levels): (&[u32], usize)| {
+            FoldCounts::new(codes, levels, target, folds, n_folds, k)
+        };
+        let model = FoldPosteriors {
+            singles: codes.singles.iter().map(|&c| count(c)).collect(),
+            cell: codes
+                .cell
+                .as_ref()
+                .map(|(cells, levels)| count((cells, *levels))),
+            priors: training_priors(target, k, folds, n_folds),
+            smoothing: self.smoothing,
+        };
+        let mut work = Work::new(k);
+        let mut proba = vec![0.0; target.len() * k];
+        if let Some((cell_of_row, table)) = model.cell_table(&codes, target.len(), &mut work) {
+            for ((p, &cell), &fold) in proba.chunks_exact_mut(k).zip(cell_of_row).zip(folds) {
+                let start = (cell as usize * n_folds + usize::from(fold)) * k;
+                p.copy_from_slice(&table[start..start + k]);
+            }
+        } else {
+            for (row, p) in proba.chunks_exact_mut(k).enumerate() {
+                let cell = codes.cell.as_ref().map_or(0, |(cells, _)| cells[row]);
+                model.posterior(codes.of_row(row), cell, folds[row], &mut work, p);
+            }
+        }
+        Ok(Scores { n_classes, proba })
+    }
+}
+
+/// Training counts of every fold from one counting pass, and the posterior
+/// of any row from them.
+struct FoldPosteriors {
+    singles: Vec<FoldCounts>,
+    cell: Option<FoldCounts>,
+    /// Training-fold class shares, per fold.
+    priors: Vec<Vec<f64>>,
+    smoothing: f64,
+}
+
+impl FoldPosteriors {
+    /// Posterior of a row with single-column codes `codes` (the second unused
+    /// for one column) and pair cell `cell`, held out in `fold`.
+    fn posterior(&self, codes: [u32; 2], cell: u32, fold: u8, work: &mut Work, out: &mut [f64]) {
+        let Work {
+            counts: [left, right, joint],
+            scratch,
+        } = work;
+        self.singles[0].training(codes[0], fold, left);
+        if let Some(cells) = &self.cell {
+            self.singles[1].training(codes[1], fold, right);
+            cells.training(cell, fold, joint);
+        }
+        posterior(
+            [left, right],
+            self.cell.as_ref().map(|_| joint.as_slice()),
+            &self.priors[usize::from(fold)],
+            self.smoothing,
+            scratch,
+            out,
+        );
+    }
+
+    /// Posteriors of every (cell, fold), `cells × folds × k`, with each row's
+    /// cell, when the cells are fewer than the rows per fold and map back to
+    /// their codes (one column, or a pair on its full grid); `None` otherwise.
+    fn cell_table<'c>(
+        &self,
+        codes: &'c CountedCodes<'_>,
+        rows: usize,
+        work: &mut Work,
+    ) -> Option<(&'c [u32], Vec<f64>)> {
+        let n_folds = self.priors.len();
+        let k = self.singles[0].k;
+        let (cell_of_row, cells, codes_of_cell): (&[u32], usize, Box<dyn Fn(u32) -> [u32; 2]>) =
+            match (&codes.cell, codes.grid_right) {
+                (None, _) => {
+                    let (single, levels) = codes.singles[0];
+                    (single, levels, Box::new(|c| [c, 0]))
+                }
+                (Some((cells, levels)), Some(right)) => (
+                    cells.as_slice(),
+                    *levels,
+                    Box::new(move |c| [c / right, c % right]),
+                ),
+                (Some(_), None) => return None,
+            };
+        if cells * n_folds > rows {
+            return None;
+        }
+        let mut table = vec![0.0; cells * n_folds * k];
+        for (i, out) in table.chunks_exact_mut(k).enumerate() {
+            let (cell, fold) = ((i / n_folds) as u32, (i % n_folds) as u8);
+            self.posterior(codes_of_cell(cell), cell, fold, work, out);
+        }
+        Some((cell_of_row, table))
     }
 }
 
@@ -286,6 +532,39 @@ mod tests {
                 .zip(&expected)
                 .all(|(a, b)| (a - b).abs() < 1e-12)
         );
+    }
+
+    #[test]
+    fn one_counting_pass_gives_the_fold_by_fold_posteriors() {
+        // The override must be the same model as fitting each fold on its own:
+        // singles, a small pair grid, and a pair with an identifier-like column
+        // (3 000 × 32 cells, numbered over the observed combinations).
+        let (columns, target) = toy(3_000, 3, 9);
+        let ids: Vec<String> = (0..3_000).map(|i| format!("id{i}")).collect();
+        let id = encode_levels(
+            "id",
+            FeatureKind::IdentifierLike,
+            ids.iter().map(|s| Some(s.as_str())),
+        );
+        let folds = crate::data::folds::stratified_folds(&target, 3, 5, 0);
+        let model = FrequencySurrogate::default();
+        let sets: [Vec<&EncodedColumn>; 4] = [
+            vec![&columns[0]],
+            vec![&columns[1]],
+            vec![&columns[0], &columns[1]],
+            vec![&id, &columns[0]],
+        ];
+        for set in sets {
+            let fast = model.out_of_fold(&set, &target, 3, &folds, 5).unwrap();
+            let slow = crate::surrogate::fold_by_fold(&model, &set, &target, 3, &folds, 5).unwrap();
+            let worst = fast
+                .proba
+                .iter()
+                .zip(&slow.proba)
+                .map(|(a, b)| (a - b).abs())
+                .fold(0.0, f64::max);
+            assert!(worst < 1e-12, "{}: {worst}", set.len());
+        }
     }
 
     #[test]

@@ -575,7 +575,7 @@ impl Surrogate for LogisticSurrogate {
         n_classes: usize,
         train: &[usize],
     ) -> Result<Box<dyn Fitted>, SurrogateError> {
-        check_inputs(self.name(), columns, n_classes, train)?;
+        check_inputs(self.name(), columns, n_classes, train.len())?;
         let design = Design::fit(columns, train, self.max_one_hot.max(1));
         let patterns = Patterns::build(&design, columns, target, n_classes, train);
         let prior = class_shares(target, n_classes, train);

@@ -39,6 +39,20 @@ pub trait Surrogate: Sync {
         n_classes: usize,
         train: &[usize],
     ) -> Result<Box<dyn Fitted>, SurrogateError>;
+
+    /// Out-of-fold class probabilities for every row. By default each fold is
+    /// fitted and scored on its own; a model that can share work across folds
+    /// overrides this with the same result.
+    fn out_of_fold(
+        &self,
+        columns: &[&EncodedColumn],
+        target: &[u32],
+        n_classes: usize,
+        folds: &[u8],
+        n_folds: usize,
+    ) -> Result<Scores, SurrogateError> {
+        fold_by_fold(self, columns, target, n_classes, folds, n_folds)
+    }
 }
 
 /// A fitted surrogate.
@@ -67,12 +81,25 @@ impl Scores {
     }
 }
 
+/// Out-of-fold probabilities of `model`: every row is scored by a model
+/// fitted on the other folds only.
+pub fn cross_fit(
+    model: &dyn Surrogate,
+    columns: &[&EncodedColumn],
+    target: &[u32],
+    n_classes: usize,
+    folds: &[u8],
+    n_folds: usize,
+) -> Result<Scores, SurrogateError> {
+    model.out_of_fold(columns, target, n_classes, folds, n_folds)
+}
+
 /// Fits `model` on all folds but one and scores the held-out fold, for each fold.
 ///
 /// Folds are fitted in parallel; each fold writes only its own rows, so the
 /// result is the same at any thread count.
-pub fn cross_fit(
-    model: &dyn Surrogate,
+fn fold_by_fold<S: Surrogate + ?Sized>(
+    model: &S,
     columns: &[&EncodedColumn],
     target: &[u32],
     n_classes: usize,
@@ -114,11 +141,11 @@ fn check_inputs(
     model: &'static str,
     columns: &[&EncodedColumn],
     n_classes: usize,
-    train: &[usize],
+    n_train: usize,
 ) -> Result<(), SurrogateError> {
     let reason = if columns.is_empty() {
         "no feature column given"
-    } else if train.is_empty() {
+    } else if n_train == 0 {
         "no training rows"
     } else if n_classes < 2 {
         "the protected attribute has fewer than two classes"

@@ -368,7 +368,7 @@ impl Surrogate for TreeSurrogate {
         n_classes: usize,
         train: &[usize],
     ) -> Result<Box<dyn Fitted>, SurrogateError> {
-        check_inputs(self.name(), columns, n_classes, train)?;
+        check_inputs(self.name(), columns, n_classes, train.len())?;
         let ranked: Vec<Ranked> = columns.iter().map(|c| Ranked::new(c, train)).collect();
         let sorted = ranked.iter().map(|r| r.order.clone()).collect();
         let mut grower = Grower {
