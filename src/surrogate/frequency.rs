@@ -6,7 +6,9 @@
 //! machine learning", ECAI): p(a | x) = (n_xa + m·q_a) / (n_x + m), where q is
 //! the prior the cell falls back to. A level never seen in training gets q.
 
-use super::{Fitted, Scores, Surrogate, SurrogateError, check_inputs, class_shares, normalise};
+use super::{
+    Fitted, FoldCounts, Scores, Surrogate, SurrogateError, check_inputs, class_shares, normalise,
+};
 use crate::data::EncodedColumn;
 use crate::data::encode::combine_codes;
 
@@ -229,46 +231,6 @@ impl Fitted for FittedFrequency {
             );
         }
         out
-    }
-}
-
-/// Class counts per (code, fold) over all rows: the training counts of any
-/// fold are the total minus that fold's, so one pass serves every fold.
-struct FoldCounts {
-    n_folds: usize,
-    k: usize,
-    /// `levels × n_folds × k`.
-    counts: Vec<u32>,
-}
-
-impl FoldCounts {
-    fn new(
-        codes: &[u32],
-        levels: usize,
-        target: &[u32],
-        folds: &[u8],
-        n_folds: usize,
-        k: usize,
-    ) -> Self {
-        let mut counts = vec![0u32; levels * n_folds * k];
-        for ((&code, &class), &fold) in codes.iter().zip(target).zip(folds) {
-            counts[(code as usize * n_folds + fold as usize) * k + class as usize] += 1;
-        }
-        Self { n_folds, k, counts }
-    }
-
-    /// Class counts of `code` in every fold but `fold`, into `out`.
-    fn training(&self, code: u32, fold: u8, out: &mut [f64]) {
-        let start = code as usize * self.n_folds * self.k;
-        let block = &self.counts[start..start + self.n_folds * self.k];
-        out.fill(0.0);
-        for (f, per_fold) in block.chunks_exact(self.k).enumerate() {
-            if f != usize::from(fold) {
-                out.iter_mut()
-                    .zip(per_fold)
-                    .for_each(|(o, &c)| *o += f64::from(c));
-            }
-        }
     }
 }
 

@@ -6,8 +6,10 @@
 //! vector per class (Hastie, Tibshirani & Friedman 2009, "The Elements of
 //! Statistical Learning", §4.4.1 for the Newton/IRLS update). Rows with the
 //! same design row are merged into one weighted pattern first, so a discrete
-//! feature costs O(N) once and then O(levels) per iteration; continuous
-//! columns keep one pattern per row with one or two non-zero features.
+//! feature costs O(N) once and then O(levels) per iteration. A single numeric
+//! column merges rows with equal values (real data is rounded: a few thousand
+//! distinct values in a million rows), so each iteration costs O(distinct
+//! values); several continuous columns keep one pattern per row.
 //!
 //! Features per column: a numeric or integer-coded column gives its raw value
 //! with training-fold median imputation, plus a missing indicator when the
@@ -20,6 +22,7 @@
 
 use super::{Fitted, Surrogate, SurrogateError, check_inputs, class_shares};
 use crate::data::{EncodedColumn, FeatureKind};
+use crate::keys::KeyIndex;
 
 /// Patterns beyond this many distinct code combinations are not merged.
 const MAX_GROUPED_PATTERNS: u64 = 1 << 16;
@@ -250,6 +253,38 @@ fn pattern_radix(columns: &[&EncodedColumn]) -> Option<Vec<u64>> {
     (discrete && total <= MAX_GROUPED_PATTERNS).then_some(radix)
 }
 
+/// How training rows are merged into patterns.
+enum Grouping {
+    /// Discrete columns with few combinations: the mixed-radix code indexes
+    /// `pattern_of_key` directly.
+    Radix(Vec<u64>),
+    /// One column: rows with the same value (raw bits, or code) are numbered
+    /// by hashing, in the order the patterns are created.
+    Hashed(KeyIndex),
+    /// Every row is its own pattern.
+    Rows,
+}
+
+impl Grouping {
+    fn of(columns: &[&EncodedColumn], train: &[usize]) -> Self {
+        match pattern_radix(columns) {
+            Some(radix) => Self::Radix(radix),
+            None if columns.len() == 1 => Self::Hashed(KeyIndex::with_limit(train.len())),
+            None => Self::Rows,
+        }
+    }
+}
+
+/// The value of `row` in a single column as a hash key: the raw number's
+/// bits (all missing values alike, −0 as +0), or the code.
+fn value_key(column: &EncodedColumn, row: usize) -> u64 {
+    match &column.raw {
+        Some(raw) if raw[row].is_nan() => u64::MAX,
+        Some(raw) => (raw[row] + 0.0).to_bits(),
+        None => u64::from(column.codes[row]),
+    }
+}
+
 impl Patterns {
     fn build(
         design: &Design,
@@ -258,21 +293,14 @@ impl Patterns {
         k: usize,
         train: &[usize],
     ) -> Self {
-        let radix = pattern_radix(columns);
-        let key = |row: usize| -> usize {
-            radix.as_ref().map_or(0, |radix| {
-                columns
-                    .iter()
-                    .zip(radix)
-                    .map(|(c, &r)| u64::from(c.codes[row]) * r)
-                    .sum::<u64>() as usize
-            })
+        let mut grouping = Grouping::of(columns, train);
+        let n_keys = match &grouping {
+            Grouping::Radix(radix) => radix
+                .last()
+                .zip(columns.last())
+                .map_or(0, |(&r, c)| r as usize * c.n_levels as usize),
+            _ => 0,
         };
-        let n_keys = radix
-            .as_ref()
-            .and_then(|r| r.last().zip(columns.last()))
-            .map_or(0, |(&r, c)| r as usize * c.n_levels as usize);
-        // Without grouping every row is its own pattern (`pattern_of_key` stays empty).
         let mut pattern_of_key = vec![usize::MAX; n_keys];
         let mut patterns = Self {
             start: vec![0],
@@ -280,19 +308,29 @@ impl Patterns {
         };
         let mut x = SparseRow::default();
         for &row in train {
-            let key = key(row);
-            let known = pattern_of_key
-                .get(key)
-                .copied()
-                .filter(|&p| p != usize::MAX);
-            let pattern = known.unwrap_or_else(|| {
-                let new = patterns.len();
-                if let Some(slot) = pattern_of_key.get_mut(key) {
-                    *slot = new;
+            let known = match &mut grouping {
+                Grouping::Radix(radix) => {
+                    let key = columns
+                        .iter()
+                        .zip(radix.iter())
+                        .map(|(c, &r)| u64::from(c.codes[row]) * r)
+                        .sum::<u64>() as usize;
+                    let known = pattern_of_key[key];
+                    if known == usize::MAX {
+                        pattern_of_key[key] = patterns.len();
+                    }
+                    (known != usize::MAX).then_some(known)
                 }
+                Grouping::Hashed(index) => index
+                    .number(value_key(columns[0], row))
+                    .map(|p| p as usize)
+                    .filter(|&p| p < patterns.len()),
+                Grouping::Rows => None,
+            };
+            let pattern = known.unwrap_or_else(|| {
                 design.features(columns, row, &mut x);
                 patterns.push(&x, k);
-                new
+                patterns.len() - 1
             });
             patterns.counts[pattern * k + target[row] as usize] += 1.0;
         }

@@ -124,6 +124,56 @@ fn fold_by_fold<S: Surrogate + ?Sized>(
     Ok(Scores { n_classes, proba })
 }
 
+/// Class counts per (code, fold) over all rows: the training counts of any
+/// fold are the total minus that fold's, so one pass serves every fold.
+pub(crate) struct FoldCounts {
+    n_folds: usize,
+    pub(crate) k: usize,
+    /// `levels × n_folds × k`.
+    counts: Vec<u32>,
+}
+
+impl FoldCounts {
+    pub(crate) fn new(
+        codes: &[u32],
+        levels: usize,
+        target: &[u32],
+        folds: &[u8],
+        n_folds: usize,
+        k: usize,
+    ) -> Self {
+        let mut counts = vec![0u32; levels * n_folds * k];
+        for ((&code, &class), &fold) in codes.iter().zip(target).zip(folds) {
+            counts[(code as usize * n_folds + fold as usize) * k + class as usize] += 1;
+        }
+        Self { n_folds, k, counts }
+    }
+
+    /// Class counts of `code` in every fold but `fold`, into `out`.
+    pub(crate) fn training(&self, code: u32, fold: u8, out: &mut [f64]) {
+        let start = code as usize * self.n_folds * self.k;
+        let block = &self.counts[start..start + self.n_folds * self.k];
+        out.fill(0.0);
+        for (f, per_fold) in block.chunks_exact(self.k).enumerate() {
+            if f != usize::from(fold) {
+                out.iter_mut()
+                    .zip(per_fold)
+                    .for_each(|(o, &c)| *o += f64::from(c));
+            }
+        }
+    }
+
+    /// Training counts of every code for `fold`: `levels × k`.
+    pub(crate) fn training_table(&self, fold: u8) -> Vec<f64> {
+        let levels = self.counts.len() / (self.n_folds * self.k);
+        let mut table = vec![0.0; levels * self.k];
+        for (code, out) in table.chunks_exact_mut(self.k).enumerate() {
+            self.training(code as u32, fold, out);
+        }
+        table
+    }
+}
+
 /// Share of each class among the `train` rows (the training-fold prior).
 #[must_use]
 pub fn class_shares(target: &[u32], n_classes: usize, train: &[usize]) -> Vec<f64> {

@@ -11,8 +11,10 @@
 //! values are scanned as a sorted run of distinct values with class counts,
 //! so the search is exact, not binned.
 
-use super::{Fitted, Surrogate, SurrogateError, check_inputs};
+use super::{Fitted, FoldCounts, Scores, Surrogate, SurrogateError, check_inputs, fold_by_fold};
 use crate::data::{EncodedColumn, FeatureKind};
+use crate::keys::KeyIndex;
+use rayon::prelude::*;
 
 /// Rank given to a missing raw value.
 const MISSING: u32 = u32::MAX;
@@ -174,131 +176,183 @@ fn midpoint(low: f64, high: f64) -> f64 {
     }
 }
 
-struct Grower<'a> {
+/// What growing a tree needs from a node's training data: its class counts,
+/// its best split and its two children. Rows (any number of columns) and a
+/// single column's histogram of distinct values implement it, and grow the
+/// same tree.
+trait TrainingData {
+    type Node;
+    fn class_counts(&self, node: &Self::Node) -> Vec<f64>;
+    fn best_split(&self, node: &Self::Node) -> Option<Split>;
+    fn split(&mut self, node: Self::Node, split: &Split) -> (Self::Node, Self::Node);
+}
+
+/// Grows the subtree of `node` depth-first into `nodes`; returns its id.
+fn grow<T: TrainingData>(
+    data: &mut T,
+    node: T::Node,
+    depth: usize,
+    params: &TreeSurrogate,
+    nodes: &mut Vec<Node>,
+) -> usize {
+    let counts = data.class_counts(&node);
+    let n: f64 = counts.iter().sum();
+    let pure = counts.iter().filter(|&&c| c > 0.0).count() <= 1;
+    let too_small = n < 2.0 || n < 2.0 * params.min_samples_leaf as f64;
+    let split = if depth >= params.max_depth || pure || too_small {
+        None
+    } else {
+        data.best_split(&node)
+    };
+    let Some(split) = split else {
+        nodes.push(Node::Leaf(counts.iter().map(|c| c / n).collect()));
+        return nodes.len() - 1;
+    };
+    let (left_node, right_node) = data.split(node, &split);
+    let id = nodes.len();
+    nodes.push(Node::Leaf(Vec::new()));
+    let left = grow(data, left_node, depth + 1, params, nodes);
+    let right = grow(data, right_node, depth + 1, params, nodes);
+    nodes[id] = Node::Branch {
+        feature: split.feature,
+        threshold: split.threshold,
+        missing_left: split.missing_left,
+        left,
+        right,
+    };
+    id
+}
+
+/// Best split of a node on one feature by the Gini proxy Σ_k n_k²/n summed
+/// over both children (n·(1 − Gini) per child; larger is purer). `observed`
+/// yields the node's observed values in ascending order as (value index,
+/// class, weight); `missing` holds the class counts of its missing values.
+/// Thresholds are tried with missing right, then with missing left, then
+/// observed-vs-missing; a later one wins only if strictly better.
+fn best_on_feature<I>(
+    feature: usize,
+    values: &[f64],
+    observed: I,
+    missing: &[f64],
+    min_leaf: f64,
+    best: &mut Option<Split>,
+) where
+    I: Iterator<Item = (u32, usize, f64)> + Clone,
+{
+    let k = missing.len();
+    let mut observed_counts = vec![0.0; k];
+    observed
+        .clone()
+        .for_each(|(_, class, w)| observed_counts[class] += w);
+    let has_missing = missing.iter().sum::<f64>() > 0.0;
+    let total: Vec<f64> = observed_counts
+        .iter()
+        .zip(missing)
+        .map(|(o, m)| o + m)
+        .collect();
+    let n_total: f64 = total.iter().sum();
+    let mut consider = |left: &[f64], missing_left: bool, threshold: f64| {
+        let n_left: f64 = left.iter().sum();
+        let n_right = n_total - n_left;
+        if n_left < min_leaf || n_right < min_leaf {
+            return;
+        }
+        // A node that saw no missing value sends them to its larger child.
+        let missing_left = if has_missing {
+            missing_left
+        } else {
+            n_left > n_right
+        };
+        let left_squares: f64 = left.iter().map(|l| l * l).sum();
+        let right_squares: f64 = total.iter().zip(left).map(|(t, l)| (t - l) * (t - l)).sum();
+        let score = left_squares / n_left + right_squares / n_right;
+        if best.is_none_or(|b| score > b.score) {
+            *best = Some(Split {
+                feature,
+                threshold,
+                missing_left,
+                score,
+            });
+        }
+    };
+    for missing_left in [false, true].into_iter().take(1 + usize::from(has_missing)) {
+        let mut left: Vec<f64> = if missing_left {
+            missing.to_vec()
+        } else {
+            vec![0.0; k]
+        };
+        let mut items = observed.clone().peekable();
+        while let Some((low, class, w)) = items.next() {
+            left[class] += w;
+            match items.peek() {
+                Some(&(high, _, _)) if high != low => {
+                    let threshold = midpoint(values[low as usize], values[high as usize]);
+                    consider(&left, missing_left, threshold);
+                }
+                _ => {}
+            }
+        }
+    }
+    if has_missing && observed_counts.iter().sum::<f64>() > 0.0 {
+        consider(&observed_counts, false, f64::INFINITY);
+    }
+}
+
+/// Training rows, kept sorted by each feature.
+struct Rows<'a> {
     params: TreeSurrogate,
     ranked: Vec<Ranked>,
     target: &'a [u32],
     k: usize,
-    nodes: Vec<Node>,
     /// Scratch: the side of each row at the split being applied.
     goes_left: Vec<bool>,
 }
 
-impl Grower<'_> {
-    fn class_counts(&self, rows: &[u32]) -> Vec<f64> {
+impl Rows<'_> {
+    fn counts_of(&self, rows: &[u32]) -> Vec<f64> {
         let mut counts = vec![0.0; self.k];
         for &row in rows {
             counts[self.target[row as usize] as usize] += 1.0;
         }
         counts
     }
+}
 
-    /// Best split of a node on `feature` by the Gini proxy Σ_k n_k²/n summed
-    /// over both children (n·(1 − Gini) per child; larger is purer), given the
-    /// node's rows sorted by that feature: thresholds with missing right, then
-    /// with missing left, then observed-vs-missing; a later one wins only if
-    /// strictly better.
-    fn best_on_feature(&self, feature: usize, sorted: &[u32], best: &mut Option<Split>) {
-        let ranked = &self.ranked[feature];
-        let k = self.k;
-        let rank = |i: usize| ranked.rank[sorted[i] as usize];
-        let observed_len = sorted.partition_point(|&row| ranked.rank[row as usize] != MISSING);
-        let (observed, missing) = (
-            self.class_counts(&sorted[..observed_len]),
-            self.class_counts(&sorted[observed_len..]),
-        );
-        let has_missing = observed_len < sorted.len();
-        let min_leaf = self.params.min_samples_leaf.max(1) as f64;
-        let total: Vec<f64> = observed.iter().zip(&missing).map(|(o, m)| o + m).collect();
-        let n_total: f64 = total.iter().sum();
-        let mut consider = |left: &[f64], missing_left: bool, threshold: f64| {
-            let n_left: f64 = left.iter().sum();
-            let n_right = n_total - n_left;
-            if n_left < min_leaf || n_right < min_leaf {
-                return;
-            }
-            // A node that saw no missing value sends them to its larger child.
-            let missing_left = if has_missing {
-                missing_left
-            } else {
-                n_left > n_right
-            };
-            let left_squares: f64 = left.iter().map(|l| l * l).sum();
-            let right_squares: f64 = total.iter().zip(left).map(|(t, l)| (t - l) * (t - l)).sum();
-            let score = left_squares / n_left + right_squares / n_right;
-            if best.is_none_or(|b| score > b.score) {
-                *best = Some(Split {
-                    feature,
-                    threshold,
-                    missing_left,
-                    score,
-                });
-            }
-        };
-        for missing_left in [false, true].into_iter().take(1 + usize::from(has_missing)) {
-            let mut left: Vec<f64> = if missing_left {
-                missing.clone()
-            } else {
-                vec![0.0; k]
-            };
-            for i in 0..observed_len.saturating_sub(1) {
-                left[self.target[sorted[i] as usize] as usize] += 1.0;
-                let (low, high) = (rank(i), rank(i + 1));
-                if low != high {
-                    let threshold =
-                        midpoint(ranked.values[low as usize], ranked.values[high as usize]);
-                    consider(&left, missing_left, threshold);
-                }
-            }
-        }
-        if has_missing && observed_len > 0 {
-            consider(&observed, false, f64::INFINITY);
-        }
+impl TrainingData for Rows<'_> {
+    /// The node's rows sorted by each feature.
+    type Node = Vec<Vec<u32>>;
+
+    fn class_counts(&self, node: &Self::Node) -> Vec<f64> {
+        self.counts_of(&node[0])
     }
 
-    /// Grows the subtree of a node whose rows are given sorted by each feature.
-    fn grow(&mut self, sorted: Vec<Vec<u32>>, depth: usize) -> usize {
-        let counts = self.class_counts(&sorted[0]);
-        let n = sorted[0].len();
-        let pure = counts.iter().filter(|&&c| c > 0.0).count() <= 1;
-        let too_small = n < 2 || n < 2 * self.params.min_samples_leaf;
-        let split = if depth >= self.params.max_depth || pure || too_small {
-            None
-        } else {
-            let mut best = None;
-            for (feature, rows) in sorted.iter().enumerate() {
-                self.best_on_feature(feature, rows, &mut best);
-            }
-            best
-        };
-        let Some(split) = split else {
-            self.nodes
-                .push(Node::Leaf(counts.iter().map(|c| c / n as f64).collect()));
-            return self.nodes.len() - 1;
-        };
-        let (left_rows, right_rows) = self.partition(sorted, &split);
-        let id = self.nodes.len();
-        self.nodes.push(Node::Leaf(Vec::new()));
-        let left = self.grow(left_rows, depth + 1);
-        let right = self.grow(right_rows, depth + 1);
-        self.nodes[id] = Node::Branch {
-            feature: split.feature,
-            threshold: split.threshold,
-            missing_left: split.missing_left,
-            left,
-            right,
-        };
-        id
+    fn best_split(&self, node: &Self::Node) -> Option<Split> {
+        let mut best = None;
+        let min_leaf = self.params.min_samples_leaf.max(1) as f64;
+        for (feature, sorted) in node.iter().enumerate() {
+            let ranked = &self.ranked[feature];
+            let observed_len = sorted.partition_point(|&row| ranked.rank[row as usize] != MISSING);
+            let observed = sorted[..observed_len].iter().map(|&row| {
+                let row = row as usize;
+                (ranked.rank[row], self.target[row] as usize, 1.0)
+            });
+            let missing = self.counts_of(&sorted[observed_len..]);
+            best_on_feature(
+                feature,
+                &ranked.values,
+                observed,
+                &missing,
+                min_leaf,
+                &mut best,
+            );
+        }
+        best
     }
 
     /// Stable partition of every feature's sorted rows by the split.
-    fn partition(
-        &mut self,
-        sorted: Vec<Vec<u32>>,
-        split: &Split,
-    ) -> (Vec<Vec<u32>>, Vec<Vec<u32>>) {
+    fn split(&mut self, node: Self::Node, split: &Split) -> (Self::Node, Self::Node) {
         let ranked = &self.ranked[split.feature];
-        for &row in &sorted[0] {
+        for &row in &node[0] {
             let r = ranked.rank[row as usize];
             self.goes_left[row as usize] = if r == MISSING {
                 split.missing_left
@@ -306,14 +360,137 @@ impl Grower<'_> {
                 ranked.values[r as usize] <= split.threshold
             };
         }
-        sorted
-            .into_iter()
+        node.into_iter()
             .map(|rows| {
                 rows.into_iter()
                     .partition(|&row| self.goes_left[row as usize])
             })
             .unzip()
     }
+}
+
+/// One column's training counts per distinct value (ascending), with the
+/// missing values' counts last: `(values + 1) × k`.
+struct Histogram<'a> {
+    params: TreeSurrogate,
+    values: &'a [f64],
+    counts: Vec<f64>,
+    k: usize,
+}
+
+/// A node of a histogram: values `start..end`, and the missing bucket if `with_missing`.
+#[derive(Debug, Clone, Copy)]
+struct ValueRange {
+    start: usize,
+    end: usize,
+    with_missing: bool,
+}
+
+impl Histogram<'_> {
+    fn of_value(&self, v: usize) -> &[f64] {
+        &self.counts[v * self.k..(v + 1) * self.k]
+    }
+
+    fn missing(&self, node: &ValueRange) -> Vec<f64> {
+        if node.with_missing {
+            self.of_value(self.values.len()).to_vec()
+        } else {
+            vec![0.0; self.k]
+        }
+    }
+}
+
+impl TrainingData for Histogram<'_> {
+    type Node = ValueRange;
+
+    fn class_counts(&self, node: &ValueRange) -> Vec<f64> {
+        let mut counts = self.missing(node);
+        for v in node.start..node.end {
+            counts
+                .iter_mut()
+                .zip(self.of_value(v))
+                .for_each(|(c, &x)| *c += x);
+        }
+        counts
+    }
+
+    fn best_split(&self, node: &ValueRange) -> Option<Split> {
+        let observed = (node.start..node.end).flat_map(|v| {
+            self.of_value(v)
+                .iter()
+                .enumerate()
+                .filter(|&(_, &w)| w > 0.0)
+                .map(move |(class, &w)| (v as u32, class, w))
+        });
+        let mut best = None;
+        let min_leaf = self.params.min_samples_leaf.max(1) as f64;
+        best_on_feature(
+            0,
+            self.values,
+            observed,
+            &self.missing(node),
+            min_leaf,
+            &mut best,
+        );
+        best
+    }
+
+    fn split(&mut self, node: ValueRange, split: &Split) -> (ValueRange, ValueRange) {
+        let cut = node.start
+            + self.values[node.start..node.end].partition_point(|&v| v <= split.threshold);
+        (
+            ValueRange {
+                start: node.start,
+                end: cut,
+                with_missing: node.with_missing && split.missing_left,
+            },
+            ValueRange {
+                start: cut,
+                end: node.end,
+                with_missing: node.with_missing && !split.missing_left,
+            },
+        )
+    }
+}
+
+/// One column's rows as indices into its distinct observed values (the
+/// values a tree sees, ascending), missing values last; `None` when the
+/// distinct values exceed `limit`.
+fn distinct_values(column: &EncodedColumn, limit: usize) -> Option<(Vec<f64>, Vec<u32>)> {
+    let rows = column.codes.len();
+    let mut index = KeyIndex::with_limit(limit);
+    let mut first_seen = Vec::with_capacity(rows);
+    for row in 0..rows {
+        let value = ordinal_value(column, row);
+        first_seen.push(if value.is_nan() {
+            u32::MAX
+        } else {
+            index.number((value + 0.0).to_bits())?
+        });
+    }
+    let mut order: Vec<(f64, u32)> = index
+        .keys()
+        .iter()
+        .enumerate()
+        .map(|(i, &bits)| (f64::from_bits(bits), i as u32))
+        .collect();
+    order.sort_unstable_by(|a, b| a.0.total_cmp(&b.0));
+    let missing = order.len() as u32;
+    let mut rank_of = vec![0u32; order.len()];
+    for (rank, &(_, i)) in order.iter().enumerate() {
+        rank_of[i as usize] = rank as u32;
+    }
+    let of_row = first_seen
+        .into_iter()
+        .map(|i| {
+            if i == u32::MAX {
+                missing
+            } else {
+                rank_of[i as usize]
+            }
+        })
+        .collect();
+    Some((order.into_iter().map(|(v, _)| v).collect(), of_row))
 }
 
 /// A fitted tree.
@@ -323,6 +500,11 @@ struct FittedTree {
 
 impl FittedTree {
     fn leaf_of(&self, columns: &[&EncodedColumn], row: usize) -> &[f64] {
+        self.leaf_for(|feature| ordinal_value(columns[feature], row))
+    }
+
+    /// The leaf reached by the values `value_of(feature)` (`NaN` = missing).
+    fn leaf_for(&self, value_of: impl Fn(usize) -> f64) -> &[f64] {
         let mut id = 0;
         loop {
             match &self.nodes[id] {
@@ -334,7 +516,7 @@ impl FittedTree {
                     left,
                     right,
                 } => {
-                    let x = ordinal_value(columns[*feature], row);
+                    let x = value_of(*feature);
                     id = if x.is_nan() {
                         if *missing_left { *left } else { *right }
                     } else if x <= *threshold {
@@ -371,18 +553,69 @@ impl Surrogate for TreeSurrogate {
         check_inputs(self.name(), columns, n_classes, train.len())?;
         let ranked: Vec<Ranked> = columns.iter().map(|c| Ranked::new(c, train)).collect();
         let sorted = ranked.iter().map(|r| r.order.clone()).collect();
-        let mut grower = Grower {
+        let mut rows = Rows {
             params: *self,
             ranked,
             target,
             k: n_classes,
-            nodes: Vec::new(),
             goes_left: vec![false; target.len()],
         };
-        grower.grow(sorted, 0);
-        Ok(Box::new(FittedTree {
-            nodes: grower.nodes,
-        }))
+        let mut nodes = Vec::new();
+        grow(&mut rows, sorted, 0, self, &mut nodes);
+        Ok(Box::new(FittedTree { nodes }))
+    }
+
+    /// One column with at most a quarter as many distinct values as rows: the
+    /// same trees grown from per-fold histograms of the distinct values (one
+    /// counting pass for all folds), each fold's leaves looked up per value.
+    fn out_of_fold(
+        &self,
+        columns: &[&EncodedColumn],
+        target: &[u32],
+        n_classes: usize,
+        folds: &[u8],
+        n_folds: usize,
+    ) -> Result<Scores, SurrogateError> {
+        let distinct = match columns {
+            [column] => distinct_values(column, target.len() / 4),
+            _ => None,
+        };
+        let Some((values, of_row)) = distinct else {
+            return fold_by_fold(self, columns, target, n_classes, folds, n_folds);
+        };
+        check_inputs(self.name(), columns, n_classes, folds.len())?;
+        let k = n_classes;
+        let counts = FoldCounts::new(&of_row, values.len() + 1, target, folds, n_folds, k);
+        let leaves_per_fold: Vec<Vec<f64>> = (0..n_folds as u8)
+            .into_par_iter()
+            .map(|fold| {
+                let mut histogram = Histogram {
+                    params: *self,
+                    values: &values,
+                    counts: counts.training_table(fold),
+                    k,
+                };
+                let root = ValueRange {
+                    start: 0,
+                    end: values.len(),
+                    with_missing: true,
+                };
+                let mut nodes = Vec::new();
+                grow(&mut histogram, root, 0, self, &mut nodes);
+                let tree = FittedTree { nodes };
+                values
+                    .iter()
+                    .chain([&f64::NAN])
+                    .flat_map(|&v| tree.leaf_for(|_| v).to_vec())
+                    .collect()
+            })
+            .collect();
+        let mut proba = vec![0.0; target.len() * k];
+        for ((p, &v), &fold) in proba.chunks_exact_mut(k).zip(&of_row).zip(folds) {
+            let leaves = &leaves_per_fold[usize::from(fold)];
+            p.copy_from_slice(&leaves[v as usize * k..(v as usize + 1) * k]);
+        }
+        Ok(Scores { n_classes, proba })
     }
 }
 
@@ -427,6 +660,31 @@ mod tests {
         let model = tree.fit(&[&column], &target, 2, &train).unwrap();
         assert_eq!(model.predict_proba(&[&column], &[37]), vec![0.0, 1.0]);
         assert_eq!(model.predict_proba(&[&column], &[0]), vec![1.0, 0.0]);
+    }
+
+    #[test]
+    fn histogram_trees_equal_trees_grown_on_rows() {
+        // The per-fold histogram path must grow the very trees the row path
+        // grows: numeric with missing values (rounded to 1 decimal so values
+        // repeat), a categorical column, and a continuous column with too many
+        // distinct values, which goes fold by fold.
+        let (columns, target) = toy(4_000, 3, 4);
+        let rounded: Vec<f64> = columns[0]
+            .raw
+            .as_ref()
+            .unwrap()
+            .iter()
+            .map(|v| (v * 10.0).round() / 10.0)
+            .collect();
+        let rounded = encode_numeric("rounded", rounded, 32);
+        let folds = stratified_folds(&target, 3, 5, 0);
+        let model = TreeSurrogate::default();
+        for column in [&rounded, &columns[1], &columns[0]] {
+            let fast = model.out_of_fold(&[column], &target, 3, &folds, 5).unwrap();
+            let slow =
+                crate::surrogate::fold_by_fold(&model, &[column], &target, 3, &folds, 5).unwrap();
+            assert_eq!(fast, slow, "{}", column.name);
+        }
     }
 
     #[test]
