@@ -142,10 +142,12 @@ impl DataArgs {
         progress.stage("checking file", 1);
         let summary = load::inspect(&self.data, options)?;
         let plan = prepare::plan_columns(&self.data, &summary.columns, &roles)?;
-        progress.stage("reading columns", 1);
-        let frame = load::read_columns(&summary, &plan.needed(), options)?;
-        progress.stage("encoding", 1);
-        let table = prepare::encode_table(&self.data, &frame, &plan, &roles, &encode)?;
+        progress.stage("reading and encoding", 1);
+        let columns = load::FileColumns {
+            summary: &summary,
+            options,
+        };
+        let table = prepare::encode_table(&self.data, &columns, &plan, &roles, &encode)?;
         Ok((summary, table))
     }
 

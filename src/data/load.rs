@@ -87,6 +87,18 @@ pub fn read_columns(
         .map_err(|e| polars_error(&summary.path, &e))
 }
 
+/// A checked file whose columns are read on demand, a few at a time.
+pub struct FileColumns<'a> {
+    pub summary: &'a FileSummary,
+    pub options: LoadOptions,
+}
+
+impl crate::data::prepare::ColumnSource for FileColumns<'_> {
+    fn read(&self, columns: &[String]) -> Result<DataFrame, InputError> {
+        read_columns(self.summary, columns, self.options)
+    }
+}
+
 fn scan_plan(summary: &FileSummary, options: LoadOptions) -> PolarsResult<LazyFrame> {
     let path = PlRefPath::try_from_path(&summary.path)?;
     match summary.format {

@@ -210,20 +210,42 @@ fn values_of<'a>(path: &Path, column: &'a Column) -> Result<Values<'a>, InputErr
     }
 }
 
-/// Encodes the protected attributes and features of `frame` into an [`EncodedTable`].
+/// Where [`encode_table`] gets its columns: a frame already in memory, or a
+/// file read a few columns at a time (see [`crate::data::load::FileColumns`]).
+pub trait ColumnSource: Sync {
+    /// A frame holding the named columns.
+    fn read(&self, columns: &[String]) -> Result<DataFrame, InputError>;
+}
+
+impl ColumnSource for DataFrame {
+    fn read(&self, columns: &[String]) -> Result<DataFrame, InputError> {
+        self.select(columns.iter().map(String::as_str))
+            .map_err(|e| InputError::Usage(format!("columns {}: {e}", columns.join(", "))))
+    }
+}
+
+/// Memory allowed for the text of one batch of feature columns: the columns
+/// are read and encoded a batch at a time, so only their codes stay.
+const BATCH_TEXT_BYTES: usize = 96 << 20;
+/// Bytes a text value takes in a frame (a 16-byte view plus a typical field).
+const TEXT_VALUE_BYTES: usize = 24;
+
+/// Encodes the protected attributes and features of `source` into an [`EncodedTable`].
 pub fn encode_table(
     path: &Path,
-    frame: &DataFrame,
+    source: &dyn ColumnSource,
     plan: &ColumnPlan,
     roles: &Roles,
     options: &EncodeOptions,
 ) -> Result<EncodedTable, InputError> {
-    let source_rows = frame.height();
+    let protected_frame = source.read(&plan.protected)?;
+    let source_rows = protected_frame.height();
     let labels: Vec<Vec<Option<String>>> = plan
         .protected
         .iter()
-        .map(|name| protected_labels(path, frame, name, roles.bands.get(name)))
+        .map(|name| protected_labels(path, &protected_frame, name, roles.bands.get(name)))
         .collect::<Result<_, _>>()?;
+    drop(protected_frame);
     let mut kept: Vec<usize> = (0..source_rows)
         .filter(|&r| labels.iter().all(|l| l[r].is_some()))
         .collect();
@@ -244,27 +266,21 @@ pub fn encode_table(
     for attribute in &protected {
         check_protected(path, attribute, options)?;
     }
-    let all_rows = kept.len() == source_rows;
-    let encoded: Vec<Result<EncodedColumn, SkippedColumn>> = plan
-        .features
-        .par_iter()
-        .map(|name| {
-            let column = frame.column(name).map_err(|e| SkippedColumn {
-                name: name.clone(),
-                reason: e.to_string(),
-            })?;
-            let values = values_of(path, column).map_err(|e| SkippedColumn {
-                name: name.clone(),
-                reason: e.to_string(),
-            })?;
-            let values = if all_rows {
-                values
-            } else {
-                select(values, &kept)
-            };
-            encode_feature(name, values, roles.categorical.contains(name), options)
-        })
-        .collect();
+    let rows = if kept.len() == source_rows {
+        None
+    } else {
+        Some(kept.as_slice())
+    };
+    let batch = (BATCH_TEXT_BYTES / (source_rows.max(1) * TEXT_VALUE_BYTES)).max(2);
+    let mut encoded: Vec<Result<EncodedColumn, SkippedColumn>> = Vec::new();
+    for names in plan.features.chunks(batch) {
+        let frame = source.read(names)?;
+        encoded.par_extend(
+            names
+                .par_iter()
+                .map(|name| encode_named(path, &frame, name, rows, roles, options)),
+        );
+    }
     let mut features = Vec::new();
     let mut skipped: Vec<SkippedColumn> = plan
         .excluded
@@ -290,6 +306,29 @@ pub fn encode_table(
         protected,
         skipped,
     })
+}
+
+/// Reads and encodes one feature of `frame`, keeping `rows` (all when `None`).
+fn encode_named(
+    path: &Path,
+    frame: &DataFrame,
+    name: &str,
+    rows: Option<&[usize]>,
+    roles: &Roles,
+    options: &EncodeOptions,
+) -> Result<EncodedColumn, SkippedColumn> {
+    let skip = |reason: String| SkippedColumn {
+        name: name.to_string(),
+        reason,
+    };
+    let column = frame.column(name).map_err(|e| skip(e.to_string()))?;
+    let values = values_of(path, column).map_err(|e| skip(e.to_string()))?;
+    let values = match rows {
+        Some(rows) => select(values, rows),
+        None => values,
+    };
+    let categorical = roles.categorical.iter().any(|c| c == name);
+    encode_feature(name, values, categorical, options)
 }
 
 fn select<'a>(values: Values<'a>, rows: &[usize]) -> Values<'a> {
