@@ -262,6 +262,32 @@ fn a_perfect_proxy_fails_the_gate_with_status_one() {
 }
 
 #[test]
+fn no_ablation_keeps_the_whole_set_attack_and_says_what_was_skipped() {
+    let file = demo_fixture();
+    let (out, json) = scan_json(
+        &file,
+        &[
+            "-p",
+            "community",
+            "--pairs",
+            "none",
+            "--no-ablation",
+            "--quiet",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    let whole = &json["results"][0]["whole_set"];
+    // The demo generator's Bayes AUC is about 0.978 (README, the demo); the
+    // attacker without joint pair columns still sits far above chance.
+    assert!(whole["auc"].as_f64().unwrap() > 0.9, "{whole}");
+    assert_eq!(whole["ablation"], false);
+    assert_eq!(whole["drop_one"], serde_json::json!([]));
+    assert_eq!(whole["removal_plan"], serde_json::json!([]));
+    let notes = json["notes"].to_string();
+    assert!(notes.contains("--no-ablation"), "{notes}");
+}
+
+#[test]
 fn piped_output_has_no_progress_bars() {
     let dir = scratch("quiet");
     let file = write(&dir, "d.csv", small_csv().as_bytes());

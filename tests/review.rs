@@ -56,6 +56,7 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         drop_one: Vec::new(),
         removal_plan: Vec::new(),
         target_reached: false,
+        ablation: true,
     }
 }
 

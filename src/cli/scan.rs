@@ -48,6 +48,10 @@ pub struct ScanSettingsArgs {
     /// Skip the whole-set attack, ablation and removal plan.
     #[arg(long)]
     pub no_whole_set: bool,
+    /// Run the whole-set attack but skip drop-one ablation and the removal
+    /// plan, which refit the attacker once per feature (slow on large data).
+    #[arg(long)]
+    pub no_ablation: bool,
 }
 
 impl ScanSettingsArgs {
@@ -78,6 +82,7 @@ impl ScanSettingsArgs {
             },
             min_cell,
             whole_set: !self.no_whole_set,
+            ablation: !self.no_ablation,
             ..ScanOptions::default()
         })
     }

@@ -222,6 +222,14 @@ pub struct WholeSet {
     pub removal_plan: Vec<RemovalStep>,
     /// Whether the removal plan brought the AUC below the target.
     pub target_reached: bool,
+    /// Whether drop-one ablation and the removal plan were run (`--no-ablation` skips them).
+    #[serde(default = "ran")]
+    pub ablation: bool,
+}
+
+/// Reports written before `ablation` existed always ran it.
+fn ran() -> bool {
+    true
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]

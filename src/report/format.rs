@@ -241,6 +241,9 @@ pub fn flagged_compositions(
 #[must_use]
 pub fn removal_outcome(whole: &WholeSet, target_auc: f64) -> String {
     let steps = whole.removal_plan.len();
+    if !whole.ablation {
+        return "Drop-one ablation and the removal plan were not run (--no-ablation).".to_string();
+    }
     match (whole.target_reached, steps) {
         (true, 0) => format!("The whole set is already below the target AUC {target_auc:.2}."),
         (true, n) => {

@@ -167,6 +167,7 @@ fn whole_set() -> WholeSet {
             removal_step("income", 0.583),
         ],
         target_reached: true,
+        ablation: true,
     }
 }
 

@@ -58,6 +58,8 @@ pub struct ScanOptions {
     pub removal_candidates: usize,
     /// Whole-set analysis (boosted attacker, ablation, removal plan).
     pub whole_set: bool,
+    /// Drop-one ablation and removal plan (one boosted fit per feature and step).
+    pub ablation: bool,
 }
 
 impl Default for ScanOptions {
@@ -72,6 +74,7 @@ impl Default for ScanOptions {
             min_cell: 10,
             removal_candidates: 5,
             whole_set: true,
+            ablation: true,
         }
     }
 }
@@ -166,6 +169,9 @@ pub fn build_report(
             "whole-set attack, drop-one ablation and removal plan were not run (--no-whole-set)"
                 .to_string(),
         );
+    }
+    if options.whole_set && !options.ablation {
+        notes.push("drop-one ablation and removal plan were not run (--no-ablation)".to_string());
     }
     if options.pairs == PairMode::None {
         notes.push("pair scan not run (--pairs none)".to_string());

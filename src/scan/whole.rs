@@ -101,6 +101,40 @@ pub fn scan_whole_set(
     progress.stage(&format!("whole set: {}", target.attribute.name), 1);
     let full = attack(inputs, &all, target)?;
     progress.advance(1);
+    let (drop_one, removal_plan, target_reached) = if options.ablation {
+        ablation(inputs, target, options, &full, progress)
+    } else {
+        (Vec::new(), Vec::new(), false)
+    };
+    let interval = full.evaluation.interval();
+    Some(WholeSet {
+        auc: interval.auc,
+        auc_low: interval.auc_low,
+        auc_high: interval.auc_high,
+        auc_se: interval.auc_se,
+        ber: full.evaluation.ber,
+        hand_till: full.evaluation.hand_till,
+        surrogate: BoostedSurrogate::default().name().to_string(),
+        features_used: features.len(),
+        roc: Some(roc(&full.scores, target)),
+        drop_one,
+        removal_plan,
+        target_reached,
+        ablation: options.ablation,
+    })
+}
+
+/// Drop-one ablation (every feature, DeLong p-value against the full set)
+/// and the removal plan that starts from it.
+fn ablation(
+    inputs: &AttackInputs<'_>,
+    target: &Target<'_>,
+    options: &ScanOptions,
+    full: &Attack,
+    progress: &dyn Progress,
+) -> (Vec<DropOne>, Vec<RemovalStep>, bool) {
+    let features = inputs.features;
+    let all: Vec<usize> = (0..features.len()).collect();
     progress.stage(
         &format!("drop-one: {}", target.attribute.name),
         features.len() as u64,
@@ -143,21 +177,7 @@ pub fn scan_whole_set(
         first_step,
         progress,
     );
-    let interval = full.evaluation.interval();
-    Some(WholeSet {
-        auc: interval.auc,
-        auc_low: interval.auc_low,
-        auc_high: interval.auc_high,
-        auc_se: interval.auc_se,
-        ber: full.evaluation.ber,
-        hand_till: full.evaluation.hand_till,
-        surrogate: BoostedSurrogate::default().name().to_string(),
-        features_used: features.len(),
-        roc: Some(roc(&full.scores, target)),
-        drop_one,
-        removal_plan,
-        target_reached,
-    })
+    (drop_one, removal_plan, target_reached)
 }
 
 /// Greedy plan: each step removes the candidate whose removal lowers the
