@@ -7,7 +7,8 @@
 //! the prior the cell falls back to. A level never seen in training gets q.
 
 use super::{
-    Fitted, FoldCounts, Scores, Surrogate, SurrogateError, check_inputs, class_shares, normalise,
+    Fitted, FoldCounts, FoldedTarget, Scores, Surrogate, SurrogateError, check_inputs,
+    class_shares, normalise,
 };
 use crate::data::EncodedColumn;
 use crate::data::encode::combine_codes;
@@ -303,11 +304,14 @@ impl Surrogate for FrequencySurrogate {
     fn out_of_fold(
         &self,
         columns: &[&EncodedColumn],
-        target: &[u32],
-        n_classes: usize,
-        folds: &[u8],
-        n_folds: usize,
+        folded: FoldedTarget<'_>,
     ) -> Result<Scores, SurrogateError> {
+        let FoldedTarget {
+            classes: target,
+            n_classes,
+            folds,
+            n_folds,
+        } = folded;
         check_inputs(self.name(), columns, n_classes, folds.len())?;
         self.check(columns)?;
         let k = n_classes;
@@ -517,8 +521,14 @@ mod tests {
             vec![&id, &columns[0]],
         ];
         for set in sets {
-            let fast = model.out_of_fold(&set, &target, 3, &folds, 5).unwrap();
-            let slow = crate::surrogate::fold_by_fold(&model, &set, &target, 3, &folds, 5).unwrap();
+            let folded = FoldedTarget {
+                classes: &target,
+                n_classes: 3,
+                folds: &folds,
+                n_folds: 5,
+            };
+            let fast = model.out_of_fold(&set, folded).unwrap();
+            let slow = crate::surrogate::fold_by_fold(&model, &set, folded).unwrap();
             let worst = fast
                 .proba
                 .iter()

@@ -46,13 +46,19 @@ pub trait Surrogate: Sync {
     fn out_of_fold(
         &self,
         columns: &[&EncodedColumn],
-        target: &[u32],
-        n_classes: usize,
-        folds: &[u8],
-        n_folds: usize,
+        target: FoldedTarget<'_>,
     ) -> Result<Scores, SurrogateError> {
-        fold_by_fold(self, columns, target, n_classes, folds, n_folds)
+        fold_by_fold(self, columns, target)
     }
+}
+
+/// Class codes of the protected attribute (`0..n_classes`) and the fold of each row.
+#[derive(Debug, Clone, Copy)]
+pub struct FoldedTarget<'a> {
+    pub classes: &'a [u32],
+    pub n_classes: usize,
+    pub folds: &'a [u8],
+    pub n_folds: usize,
 }
 
 /// A fitted surrogate.
@@ -91,7 +97,13 @@ pub fn cross_fit(
     folds: &[u8],
     n_folds: usize,
 ) -> Result<Scores, SurrogateError> {
-    model.out_of_fold(columns, target, n_classes, folds, n_folds)
+    let target = FoldedTarget {
+        classes: target,
+        n_classes,
+        folds,
+        n_folds,
+    };
+    model.out_of_fold(columns, target)
 }
 
 /// Fits `model` on all folds but one and scores the held-out fold, for each fold.
@@ -101,11 +113,14 @@ pub fn cross_fit(
 fn fold_by_fold<S: Surrogate + ?Sized>(
     model: &S,
     columns: &[&EncodedColumn],
-    target: &[u32],
-    n_classes: usize,
-    folds: &[u8],
-    n_folds: usize,
+    target: FoldedTarget<'_>,
 ) -> Result<Scores, SurrogateError> {
+    let FoldedTarget {
+        classes: target,
+        n_classes,
+        folds,
+        n_folds,
+    } = target;
     let per_fold: Vec<(Vec<usize>, Vec<f64>)> = (0..n_folds as u8)
         .into_par_iter()
         .map(|fold| {

@@ -11,7 +11,9 @@
 //! values are scanned as a sorted run of distinct values with class counts,
 //! so the search is exact, not binned.
 
-use super::{Fitted, FoldCounts, Scores, Surrogate, SurrogateError, check_inputs, fold_by_fold};
+use super::{
+    Fitted, FoldCounts, FoldedTarget, Scores, Surrogate, SurrogateError, check_inputs, fold_by_fold,
+};
 use crate::data::{EncodedColumn, FeatureKind};
 use crate::keys::KeyIndex;
 use rayon::prelude::*;
@@ -571,17 +573,20 @@ impl Surrogate for TreeSurrogate {
     fn out_of_fold(
         &self,
         columns: &[&EncodedColumn],
-        target: &[u32],
-        n_classes: usize,
-        folds: &[u8],
-        n_folds: usize,
+        folded: FoldedTarget<'_>,
     ) -> Result<Scores, SurrogateError> {
+        let FoldedTarget {
+            classes: target,
+            n_classes,
+            folds,
+            n_folds,
+        } = folded;
         let distinct = match columns {
             [column] => distinct_values(column, target.len() / 4),
             _ => None,
         };
         let Some((values, of_row)) = distinct else {
-            return fold_by_fold(self, columns, target, n_classes, folds, n_folds);
+            return fold_by_fold(self, columns, folded);
         };
         check_inputs(self.name(), columns, n_classes, folds.len())?;
         let k = n_classes;
@@ -680,9 +685,14 @@ mod tests {
         let folds = stratified_folds(&target, 3, 5, 0);
         let model = TreeSurrogate::default();
         for column in [&rounded, &columns[1], &columns[0]] {
-            let fast = model.out_of_fold(&[column], &target, 3, &folds, 5).unwrap();
-            let slow =
-                crate::surrogate::fold_by_fold(&model, &[column], &target, 3, &folds, 5).unwrap();
+            let folded = FoldedTarget {
+                classes: &target,
+                n_classes: 3,
+                folds: &folds,
+                n_folds: 5,
+            };
+            let fast = model.out_of_fold(&[column], folded).unwrap();
+            let slow = crate::surrogate::fold_by_fold(&model, &[column], folded).unwrap();
             assert_eq!(fast, slow, "{}", column.name);
         }
     }
