@@ -72,6 +72,12 @@ fn planted_proxies_are_found_and_decoys_are_clear() {
         })
         .expect("joint pair scanned");
     assert!(pair.gain >= 0.25, "joint-only pair gain {}", pair.gain);
+    // Identifier-like columns are screened alone: no pair holds one.
+    assert!(
+        r.pairs
+            .iter()
+            .all(|p| !p.features.contains(&"application_ref".to_string()))
+    );
 
     assert_ne!(feature(r, "months_at_address").flag, Flag::Clear);
     for noise in ["loan_amount", "term_months", "has_guarantor", "product"] {

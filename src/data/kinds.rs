@@ -40,12 +40,16 @@ pub fn parse_number(field: &str) -> Option<f64> {
 /// Parses every present field; `None` if any present field is not a finite number.
 #[must_use]
 pub fn parse_numbers<'a>(values: impl Iterator<Item = Option<&'a str>>) -> Option<Vec<f64>> {
-    values
-        .map(|v| match v {
-            None => Some(f64::NAN),
-            Some(text) => parse_number(text),
-        })
-        .collect()
+    // Sized up front: collecting into `Option<Vec>` grows by doubling and can
+    // leave up to half the buffer unused for the life of the column.
+    let mut numbers = Vec::with_capacity(values.size_hint().0);
+    for value in values {
+        numbers.push(match value {
+            None => f64::NAN,
+            Some(text) => parse_number(text)?,
+        });
+    }
+    Some(numbers)
 }
 
 /// Summary of the distinct non-missing values of a column.

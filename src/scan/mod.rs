@@ -173,10 +173,24 @@ pub fn build_report(
     if options.whole_set && !options.ablation {
         notes.push("drop-one ablation and removal plan were not run (--no-ablation)".to_string());
     }
+    let unpaired: Vec<&str> = table
+        .features
+        .iter()
+        .filter(|f| !pairs::pairs_with(f))
+        .map(|f| f.name.as_str())
+        .collect();
     if options.pairs == PairMode::None {
         notes.push("pair scan not run (--pairs none)".to_string());
-    } else if options.pairs == PairMode::Top || table.features.len() > options.pair_budget_features
-    {
+    } else if !unpaired.is_empty() {
+        notes.push(format!(
+            "identifier-like columns are screened alone, not in pairs (nearly every pair cell \
+             would hold a single row): {}",
+            unpaired.join(", ")
+        ));
+    }
+    let budgeted = options.pairs == PairMode::Top
+        || table.features.len() - unpaired.len() > options.pair_budget_features;
+    if options.pairs != PairMode::None && budgeted {
         notes.push(format!(
             "pairs scanned only among the {} features with the most held-out information",
             options.pair_budget_features

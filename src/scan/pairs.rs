@@ -4,7 +4,7 @@
 use super::evaluate::{Target, evaluate};
 use super::verdict::flag_for;
 use super::{PairMode, Progress, ScanOptions};
-use crate::data::EncodedColumn;
+use crate::data::{EncodedColumn, FeatureKind};
 use crate::report::{FeatureResult, PairResult};
 use crate::surrogate::{FrequencySurrogate, cross_fit};
 use rayon::prelude::*;
@@ -13,16 +13,27 @@ use std::collections::HashMap;
 /// Pairs kept in the report, by gain.
 const MAX_REPORTED_PAIRS: usize = 200;
 
+/// Whether a feature takes part in the pair scan. An identifier-like column
+/// is left out: nearly every cell of a pair with it holds one row, which the
+/// held-out fold never sees, so the pair surrogate could only repeat the
+/// partner's own evidence (the single-feature scan still screens it).
+pub fn pairs_with(feature: &EncodedColumn) -> bool {
+    feature.kind != FeatureKind::IdentifierLike
+}
+
 /// Indices of the feature pairs to scan under the pair budget.
 fn chosen_pairs(
     features: &[EncodedColumn],
     singles: &[FeatureResult],
     options: &ScanOptions,
 ) -> Vec<(usize, usize)> {
-    let all = options.pairs == PairMode::All && features.len() <= options.pair_budget_features;
+    let eligible: Vec<usize> = (0..features.len())
+        .filter(|&i| pairs_with(&features[i]))
+        .collect();
+    let all = options.pairs == PairMode::All && eligible.len() <= options.pair_budget_features;
     let pool: Vec<usize> = match options.pairs {
         PairMode::None => return Vec::new(),
-        _ if all => (0..features.len()).collect(),
+        _ if all => eligible,
         _ => top_by_heldout(features, singles, options.pair_budget_features),
     };
     pool.iter()
@@ -52,8 +63,9 @@ fn top_by_heldout(
     });
     let mut chosen: Vec<usize> = ranked
         .iter()
-        .take(budget)
         .filter_map(|f| index.get(f.name.as_str()).copied())
+        .filter(|&i| pairs_with(&features[i]))
+        .take(budget)
         .collect();
     chosen.sort_unstable();
     chosen

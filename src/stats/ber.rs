@@ -22,9 +22,21 @@ pub fn balanced_error_rate(proba: &[f64], n_classes: usize, labels: &[u32]) -> f
         class_sizes[l as usize] += 1;
     }
     let mut errors = vec![0u64; n_classes];
-    for (row, &label) in proba.chunks(n_classes).zip(labels) {
-        if balanced_decision(row, &class_sizes) != label as usize {
-            errors[label as usize] += 1;
+    if let [n0, n1] = class_sizes[..]
+        && n0 > 0
+        && n1 > 0
+    {
+        // Two classes present: the same decision without the general loop.
+        let (n0, n1) = (n0 as f64, n1 as f64);
+        for (row, &label) in proba.chunks_exact(2).zip(labels) {
+            let decision = usize::from(row[1] / n1 > row[0] / n0);
+            errors[label as usize] += u64::from(decision != label as usize);
+        }
+    } else {
+        for (row, &label) in proba.chunks(n_classes).zip(labels) {
+            if balanced_decision(row, &class_sizes) != label as usize {
+                errors[label as usize] += 1;
+            }
         }
     }
     let present: Vec<(u64, u64)> = class_sizes
