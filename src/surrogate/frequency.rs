@@ -236,9 +236,10 @@ impl Fitted for FittedFrequency {
 }
 
 /// Class shares of the training rows of each fold (all rows but the fold's).
-fn training_priors(target: &[u32], k: usize, folds: &[u8], n_folds: usize) -> Vec<Vec<f64>> {
-    let mut per_fold = vec![vec![0.0; k]; n_folds];
-    for (&class, &fold) in target.iter().zip(folds) {
+fn training_priors(target: FoldedTarget<'_>) -> Vec<Vec<f64>> {
+    let k = target.n_classes;
+    let mut per_fold = vec![vec![0.0; k]; target.n_folds];
+    for (&class, &fold) in target.classes.iter().zip(target.folds) {
         per_fold[usize::from(fold)][class as usize] += 1.0;
     }
     let total: Vec<f64> = (0..k)
@@ -304,41 +305,36 @@ impl Surrogate for FrequencySurrogate {
     fn out_of_fold(
         &self,
         columns: &[&EncodedColumn],
-        folded: FoldedTarget<'_>,
+        target: FoldedTarget<'_>,
     ) -> Result<Scores, SurrogateError> {
-        let FoldedTarget {
-            classes: target,
-            n_classes,
-            folds,
-            n_folds,
-        } = folded;
-        check_inputs(self.name(), columns, n_classes, folds.len())?;
+        let (n_classes, n_folds) = (target.n_classes, target.n_folds);
+        check_inputs(self.name(), columns, n_classes, target.folds.len())?;
         self.check(columns)?;
         let k = n_classes;
         let codes = CountedCodes::new(columns);
-        let count = |(codes, levels): (&[u32], usize)| {
-            FoldCounts::new(codes, levels, target, folds, n_folds, k)
-        };
+        let count = |(codes, levels): (&[u32], usize)| FoldCounts::new(codes, levels, target);
         let model = FoldPosteriors {
             singles: codes.singles.iter().map(|&c| count(c)).collect(),
             cell: codes
                 .cell
                 .as_ref()
                 .map(|(cells, levels)| count((cells, *levels))),
-            priors: training_priors(target, k, folds, n_folds),
+            priors: training_priors(target),
             smoothing: self.smoothing,
         };
         let mut work = Work::new(k);
-        let mut proba = vec![0.0; target.len() * k];
-        if let Some((cell_of_row, table)) = model.cell_table(&codes, target.len(), &mut work) {
-            for ((p, &cell), &fold) in proba.chunks_exact_mut(k).zip(cell_of_row).zip(folds) {
+        let rows = target.classes.len();
+        let mut proba = vec![0.0; rows * k];
+        if let Some((cell_of_row, table)) = model.cell_table(&codes, rows, &mut work) {
+            let cells_and_folds = cell_of_row.iter().zip(target.folds);
+            for (p, (&cell, &fold)) in proba.chunks_exact_mut(k).zip(cells_and_folds) {
                 let start = (cell as usize * n_folds + usize::from(fold)) * k;
                 p.copy_from_slice(&table[start..start + k]);
             }
         } else {
             for (row, p) in proba.chunks_exact_mut(k).enumerate() {
                 let cell = codes.cell.as_ref().map_or(0, |(cells, _)| cells[row]);
-                model.posterior(codes.of_row(row), cell, folds[row], &mut work, p);
+                model.posterior(codes.of_row(row), cell, target.folds[row], &mut work, p);
             }
         }
         Ok(Scores { n_classes, proba })

@@ -113,18 +113,13 @@ pub fn cross_fit(
 fn fold_by_fold<S: Surrogate + ?Sized>(
     model: &S,
     columns: &[&EncodedColumn],
-    target: FoldedTarget<'_>,
+    folded: FoldedTarget<'_>,
 ) -> Result<Scores, SurrogateError> {
-    let FoldedTarget {
-        classes: target,
-        n_classes,
-        folds,
-        n_folds,
-    } = target;
-    let per_fold: Vec<(Vec<usize>, Vec<f64>)> = (0..n_folds as u8)
+    let (target, n_classes) = (folded.classes, folded.n_classes);
+    let per_fold: Vec<(Vec<usize>, Vec<f64>)> = (0..folded.n_folds as u8)
         .into_par_iter()
         .map(|fold| {
-            let (train, held_out) = crate::data::folds::split(folds, fold);
+            let (train, held_out) = crate::data::folds::split(folded.folds, fold);
             let fitted = model.fit(columns, target, n_classes, &train)?;
             let predicted = fitted.predict_proba(columns, &held_out);
             Ok((held_out, predicted))
@@ -149,16 +144,10 @@ pub(crate) struct FoldCounts {
 }
 
 impl FoldCounts {
-    pub(crate) fn new(
-        codes: &[u32],
-        levels: usize,
-        target: &[u32],
-        folds: &[u8],
-        n_folds: usize,
-        k: usize,
-    ) -> Self {
+    pub(crate) fn new(codes: &[u32], levels: usize, target: FoldedTarget<'_>) -> Self {
+        let (n_folds, k) = (target.n_folds, target.n_classes);
         let mut counts = vec![0u32; levels * n_folds * k];
-        for ((&code, &class), &fold) in codes.iter().zip(target).zip(folds) {
+        for ((&code, &class), &fold) in codes.iter().zip(target.classes).zip(target.folds) {
             counts[(code as usize * n_folds + fold as usize) * k + class as usize] += 1;
         }
         Self { n_folds, k, counts }

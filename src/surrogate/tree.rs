@@ -575,12 +575,7 @@ impl Surrogate for TreeSurrogate {
         columns: &[&EncodedColumn],
         folded: FoldedTarget<'_>,
     ) -> Result<Scores, SurrogateError> {
-        let FoldedTarget {
-            classes: target,
-            n_classes,
-            folds,
-            n_folds,
-        } = folded;
+        let (target, n_classes, folds) = (folded.classes, folded.n_classes, folded.folds);
         let distinct = match columns {
             [column] => distinct_values(column, target.len() / 4),
             _ => None,
@@ -590,8 +585,8 @@ impl Surrogate for TreeSurrogate {
         };
         check_inputs(self.name(), columns, n_classes, folds.len())?;
         let k = n_classes;
-        let counts = FoldCounts::new(&of_row, values.len() + 1, target, folds, n_folds, k);
-        let leaves_per_fold: Vec<Vec<f64>> = (0..n_folds as u8)
+        let counts = FoldCounts::new(&of_row, values.len() + 1, folded);
+        let leaves_per_fold: Vec<Vec<f64>> = (0..folded.n_folds as u8)
             .into_par_iter()
             .map(|fold| {
                 let mut histogram = Histogram {
