@@ -455,44 +455,58 @@ impl TrainingData for Histogram<'_> {
     }
 }
 
-/// One column's rows as indices into its distinct observed values (the
-/// values a tree sees, ascending), missing values last; `None` when the
-/// distinct values exceed `limit`.
+/// One column's rows as indices into its distinct values (the values a tree
+/// sees, ascending), missing values last. A column of codes has one value per
+/// level; raw numbers are numbered by hashing, and `None` is returned once
+/// they exceed `limit` distinct values.
 fn distinct_values(column: &EncodedColumn, limit: usize) -> Option<(Vec<f64>, Vec<u32>)> {
-    let rows = column.codes.len();
-    let mut index = KeyIndex::with_limit(limit);
-    let mut first_seen = Vec::with_capacity(rows);
-    for row in 0..rows {
-        let value = ordinal_value(column, row);
-        first_seen.push(if value.is_nan() {
-            u32::MAX
-        } else {
-            index.number((value + 0.0).to_bits())?
-        });
-    }
-    let mut order: Vec<(f64, u32)> = index
-        .keys()
-        .iter()
-        .enumerate()
-        .map(|(i, &bits)| (f64::from_bits(bits), i as u32))
-        .collect();
-    order.sort_unstable_by(|a, b| a.0.total_cmp(&b.0));
-    let missing = order.len() as u32;
+    let (value_of_id, id_of_row) = match &column.raw {
+        None => {
+            let missing = column.missing_code;
+            let values = (0..column.n_levels)
+                .map(|code| {
+                    if Some(code) == missing {
+                        -1.0
+                    } else {
+                        f64::from(code)
+                    }
+                })
+                .collect::<Vec<f64>>();
+            (values, column.codes.clone())
+        }
+        Some(raw) => {
+            let mut index = KeyIndex::with_limit(limit);
+            let ids = raw
+                .iter()
+                .map(|v| {
+                    if v.is_nan() {
+                        Some(u32::MAX)
+                    } else {
+                        index.number((v + 0.0).to_bits())
+                    }
+                })
+                .collect::<Option<Vec<u32>>>()?;
+            (
+                index.keys().iter().map(|&b| f64::from_bits(b)).collect(),
+                ids,
+            )
+        }
+    };
+    let mut order: Vec<u32> = (0..value_of_id.len() as u32).collect();
+    order.sort_unstable_by(|&a, &b| value_of_id[a as usize].total_cmp(&value_of_id[b as usize]));
     let mut rank_of = vec![0u32; order.len()];
-    for (rank, &(_, i)) in order.iter().enumerate() {
-        rank_of[i as usize] = rank as u32;
+    for (rank, &id) in order.iter().enumerate() {
+        rank_of[id as usize] = rank as u32;
     }
-    let of_row = first_seen
+    let missing = order.len() as u32;
+    let of_row = id_of_row
         .into_iter()
-        .map(|i| {
-            if i == u32::MAX {
-                missing
-            } else {
-                rank_of[i as usize]
-            }
-        })
+        .map(|id| rank_of.get(id as usize).copied().unwrap_or(missing))
         .collect();
-    Some((order.into_iter().map(|(v, _)| v).collect(), of_row))
+    Some((
+        order.iter().map(|&id| value_of_id[id as usize]).collect(),
+        of_row,
+    ))
 }
 
 /// A fitted tree.
@@ -567,9 +581,10 @@ impl Surrogate for TreeSurrogate {
         Ok(Box::new(FittedTree { nodes }))
     }
 
-    /// One column with at most a quarter as many distinct values as rows: the
-    /// same trees grown from per-fold histograms of the distinct values (one
-    /// counting pass for all folds), each fold's leaves looked up per value.
+    /// One column of codes, or of numbers with at most a quarter as many
+    /// distinct values as rows: the same trees grown from per-fold histograms
+    /// of the distinct values (one counting pass for all folds), each fold's
+    /// leaves looked up per value.
     fn out_of_fold(
         &self,
         columns: &[&EncodedColumn],
