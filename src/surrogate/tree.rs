@@ -12,10 +12,10 @@
 //! so the search is exact, not binned.
 
 use super::{
-    Fitted, FoldCounts, FoldedTarget, Scores, Surrogate, SurrogateError, check_inputs, fold_by_fold,
+    Fitted, FoldCounts, FoldedTarget, Scores, Surrogate, SurrogateError, check_inputs,
+    distinct_values, fold_by_fold,
 };
 use crate::data::{EncodedColumn, FeatureKind};
-use crate::keys::KeyIndex;
 use rayon::prelude::*;
 
 /// Rank given to a missing raw value.
@@ -453,60 +453,6 @@ impl TrainingData for Histogram<'_> {
             },
         )
     }
-}
-
-/// One column's rows as indices into its distinct values (the values a tree
-/// sees, ascending), missing values last. A column of codes has one value per
-/// level; raw numbers are numbered by hashing, and `None` is returned once
-/// they exceed `limit` distinct values.
-fn distinct_values(column: &EncodedColumn, limit: usize) -> Option<(Vec<f64>, Vec<u32>)> {
-    let (value_of_id, id_of_row) = match &column.raw {
-        None => {
-            let missing = column.missing_code;
-            let values = (0..column.n_levels)
-                .map(|code| {
-                    if Some(code) == missing {
-                        -1.0
-                    } else {
-                        f64::from(code)
-                    }
-                })
-                .collect::<Vec<f64>>();
-            (values, column.codes.clone())
-        }
-        Some(raw) => {
-            let mut index = KeyIndex::with_limit(limit);
-            let ids = raw
-                .iter()
-                .map(|v| {
-                    if v.is_nan() {
-                        Some(u32::MAX)
-                    } else {
-                        index.number((v + 0.0).to_bits())
-                    }
-                })
-                .collect::<Option<Vec<u32>>>()?;
-            (
-                index.keys().iter().map(|&b| f64::from_bits(b)).collect(),
-                ids,
-            )
-        }
-    };
-    let mut order: Vec<u32> = (0..value_of_id.len() as u32).collect();
-    order.sort_unstable_by(|&a, &b| value_of_id[a as usize].total_cmp(&value_of_id[b as usize]));
-    let mut rank_of = vec![0u32; order.len()];
-    for (rank, &id) in order.iter().enumerate() {
-        rank_of[id as usize] = rank as u32;
-    }
-    let missing = order.len() as u32;
-    let of_row = id_of_row
-        .into_iter()
-        .map(|id| rank_of.get(id as usize).copied().unwrap_or(missing))
-        .collect();
-    Some((
-        order.iter().map(|&id| value_of_id[id as usize]).collect(),
-        of_row,
-    ))
 }
 
 /// A fitted tree.
