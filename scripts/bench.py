@@ -11,7 +11,8 @@ environment. For each row count the script
    - singles: mutual_info_score on the binned feature (32 quantile bins for
      numeric columns, levels for text), 5-fold LogisticRegression and 5-fold
      depth-4 DecisionTreeClassifier per feature;
-   - pairs: a 5-fold depth-4 DecisionTreeClassifier on each pair;
+   - pairs: a 5-fold depth-4 DecisionTreeClassifier on each pair telltale
+     scans (identifier-like columns are screened alone);
    - whole set: 5-fold HistGradientBoostingClassifier on all features, plus
      the joint columns of the pairs telltale hands its own attacker;
 4. prints the ratios against the targets.
@@ -68,7 +69,9 @@ def run_telltale(exe, csv, out_json):
     # The pairs telltale hands its attacker as joint columns (gain >= 0.05, at
     # most 5; src/scan/whole.rs), so scikit-learn gets the same inputs.
     joints = [p["features"] for p in result["pairs"] if p["gain"] >= 0.05][:5]
-    return stages, peak_kb, result["whole_set"]["auc"], joints
+    # telltale screens identifier-like columns alone, not in pairs.
+    unpaired = {f["name"] for f in result["features"] if f["kind"] == "identifier-like"}
+    return stages, peak_kb, result["whole_set"]["auc"], joints, unpaired
 
 
 def loaded_bytes(df):
@@ -155,12 +158,13 @@ def bench(exe, rows, sample, workdir):
     csv = os.path.join(workdir, f"demo-{rows}.csv")
     subprocess.run([exe, "demo", "--rows", str(rows), "--extra-noise", str(EXTRA_NOISE),
                     "--write-data", csv, "--force"], check=True, capture_output=True)
-    stages, peak_kb, tt_auc, joints = run_telltale(exe, csv, os.path.join(workdir, "out.json"))
+    stages, peak_kb, tt_auc, joints, unpaired = run_telltale(
+        exe, csv, os.path.join(workdir, "out.json"))
     df = pd.read_csv(csv, dtype={"application_ref": object})
     y = (df.pop(PROTECTED) == POSITIVE).astype(int).to_numpy()
     features = list(df.columns)
     folds = list(StratifiedKFold(5, shuffle=True, random_state=0).split(np.zeros(len(y)), y))
-    all_pairs = list(itertools.combinations(features, 2))
+    all_pairs = list(itertools.combinations([f for f in features if f not in unpaired], 2))
     k = len(features) if sample is None else min(sample, len(features))
     kp = len(all_pairs) if sample is None else min(2 * sample, len(all_pairs))
     t_singles, _ = timed(sklearn_singles, df, y, folds, features[:k])
