@@ -385,19 +385,14 @@ impl FoldPosteriors {
     ) -> Option<(&'c [u32], Vec<f64>)> {
         let n_folds = self.priors.len();
         let k = self.singles[0].k;
-        let (cell_of_row, cells, codes_of_cell): (&[u32], usize, Box<dyn Fn(u32) -> [u32; 2]>) =
-            match (&codes.cell, codes.grid_right) {
-                (None, _) => {
-                    let (single, levels) = codes.singles[0];
-                    (single, levels, Box::new(|c| [c, 0]))
-                }
-                (Some((cells, levels)), Some(right)) => (
-                    cells.as_slice(),
-                    *levels,
-                    Box::new(move |c| [c / right, c % right]),
-                ),
-                (Some(_), None) => return None,
-            };
+        // A cell's codes: the cell itself for one column, its grid position's
+        // row and column for a pair.
+        let (cell_of_row, cells, grid_right) = match (&codes.cell, codes.grid_right) {
+            (None, _) => (codes.singles[0].0, codes.singles[0].1, None),
+            (Some((cells, levels)), Some(right)) => (cells.as_slice(), *levels, Some(right)),
+            (Some(_), None) => return None,
+        };
+        let codes_of_cell = |c: u32| grid_right.map_or([c, 0], |right| [c / right, c % right]);
         if cells * n_folds > rows {
             return None;
         }
