@@ -275,6 +275,17 @@ pub fn encode_table(
     let mut encoded: Vec<Result<EncodedColumn, SkippedColumn>> = Vec::new();
     for names in plan.features.chunks(batch) {
         let frame = source.read(names)?;
+        if frame.height() != source_rows {
+            // Each batch reads the file again; a file replaced meanwhile must not mix.
+            return Err(InputError::Format {
+                path: path.to_path_buf(),
+                reason: format!(
+                    "changed while being read ({} rows, then {}); scan it again",
+                    source_rows,
+                    frame.height()
+                ),
+            });
+        }
         encoded.par_extend(
             names
                 .par_iter()
