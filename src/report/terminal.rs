@@ -214,7 +214,9 @@ impl TerminalRenderer {
         if !report.notes.is_empty() {
             self.heading(out, "Notes");
             for note in &report.notes {
-                out.push_str(&wrap(&format!("- {note}"), "  "));
+                // A hanging indent: continuation lines align with the text, not the dash.
+                out.push_str("  - ");
+                out.push_str(wrap(note, "    ").trim_start());
                 out.push('\n');
             }
         }
