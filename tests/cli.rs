@@ -288,6 +288,33 @@ fn no_ablation_keeps_the_whole_set_attack_and_says_what_was_skipped() {
 }
 
 #[test]
+fn large_data_ablation_runs_on_a_stated_sample() {
+    let file = demo_fixture();
+    let (out, json) = scan_json(
+        &file,
+        &[
+            "-p",
+            "community",
+            "--pairs",
+            "none",
+            "--ablation-rows",
+            "2000",
+            "--quiet",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    let whole = &json["results"][0]["whole_set"];
+    // Stratified sample: each class contributes round(2000 · share) rows.
+    let rows = whole["ablation_rows"].as_u64().unwrap();
+    assert!((1999..=2001).contains(&rows), "{rows}");
+    assert!(!whole["drop_one"].as_array().unwrap().is_empty());
+    assert!(!whole["removal_plan"].as_array().unwrap().is_empty());
+    assert!(json["notes"].to_string().contains("--ablation-rows"));
+    let too_small = telltale(&["scan", &file, "-p", "community", "--ablation-rows", "10"]);
+    assert_input_error(&too_small, &["--ablation-rows", "at least"]);
+}
+
+#[test]
 fn piped_output_has_no_progress_bars() {
     let dir = scratch("quiet");
     let file = write(&dir, "d.csv", small_csv().as_bytes());

@@ -57,6 +57,7 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         removal_plan: Vec::new(),
         target_reached: false,
         ablation: true,
+        ablation_rows: None,
     }
 }
 

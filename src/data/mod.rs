@@ -139,6 +139,24 @@ impl ProtectedAttribute {
         self.labels.len() == 2
     }
 
+    /// The attribute on `rows` only (in that order), keeping its labels and positive class.
+    #[must_use]
+    pub fn select_rows(&self, rows: &[usize]) -> Self {
+        let codes: Vec<u32> = rows.iter().map(|&r| self.codes[r]).collect();
+        let mut counts = vec![0usize; self.labels.len()];
+        for &c in &codes {
+            counts[c as usize] += 1;
+        }
+        Self {
+            name: self.name.clone(),
+            labels: self.labels.clone(),
+            codes,
+            counts,
+            positive: self.positive,
+            dropped_missing: self.dropped_missing,
+        }
+    }
+
     /// 1 for rows of the positive class, else 0 (binary attributes).
     #[must_use]
     pub fn positive_indicator(&self) -> Vec<bool> {

@@ -225,6 +225,10 @@ pub struct WholeSet {
     /// Whether drop-one ablation and the removal plan were run (`--no-ablation` skips them).
     #[serde(default = "ran")]
     pub ablation: bool,
+    /// Rows of the stratified sample the ablation and removal plan ran on,
+    /// when the data had more than `--ablation-rows`; absent when all rows.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ablation_rows: Option<usize>,
 }
 
 /// Reports written before `ablation` existed always ran it.

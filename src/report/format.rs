@@ -244,15 +244,19 @@ pub fn removal_outcome(whole: &WholeSet, target_auc: f64) -> String {
     if !whole.ablation {
         return "Drop-one ablation and the removal plan were not run (--no-ablation).".to_string();
     }
-    match (whole.target_reached, steps) {
-        (true, 0) => format!("The whole set is already below the target AUC {target_auc:.2}."),
+    let sampled = whole.ablation_rows.map_or(String::new(), |rows| {
+        format!(" (ablation on a stratified sample of {rows} rows)")
+    });
+    let outcome = match (whole.target_reached, steps) {
+        (true, 0) => format!("The whole set is already below the target AUC {target_auc:.2}"),
         (true, n) => {
-            format!("Removing {n} feature(s) brings the AUC below the target {target_auc:.2}.")
+            format!("Removing {n} feature(s) brings the AUC below the target {target_auc:.2}")
         }
         (false, _) => {
-            format!("The target AUC {target_auc:.2} was not reached even after {steps} removal(s).")
+            format!("The target AUC {target_auc:.2} was not reached even after {steps} removal(s)")
         }
-    }
+    };
+    format!("{outcome}{sampled}.")
 }
 
 /// Escapes text for HTML and SVG content and attribute values.

@@ -168,6 +168,7 @@ fn whole_set() -> WholeSet {
         ],
         target_reached: true,
         ablation: true,
+        ablation_rows: None,
     }
 }
 

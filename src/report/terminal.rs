@@ -198,10 +198,8 @@ impl TerminalRenderer {
                 None,
             ));
         }
-        out.push_str(&format!(
-            "  {}\n",
-            format::removal_outcome(whole, target_auc)
-        ));
+        out.push_str(&wrap(&format::removal_outcome(whole, target_auc), "  "));
+        out.push('\n');
     }
 
     fn trailer(&self, out: &mut String, report: &Report) {

@@ -60,6 +60,9 @@ pub struct ScanOptions {
     pub whole_set: bool,
     /// Drop-one ablation and removal plan (one boosted fit per feature and step).
     pub ablation: bool,
+    /// Rows beyond which the ablation and removal plan run on a seeded
+    /// stratified sample of this many rows.
+    pub ablation_rows: usize,
 }
 
 impl Default for ScanOptions {
@@ -75,6 +78,7 @@ impl Default for ScanOptions {
             removal_candidates: 5,
             whole_set: true,
             ablation: true,
+            ablation_rows: 200_000,
         }
     }
 }
@@ -172,6 +176,15 @@ pub fn build_report(
     }
     if options.whole_set && !options.ablation {
         notes.push("drop-one ablation and removal plan were not run (--no-ablation)".to_string());
+    }
+    if let Some(rows) = results
+        .iter()
+        .find_map(|r| r.whole_set.as_ref()?.ablation_rows)
+    {
+        notes.push(format!(
+            "drop-one ablation and removal plan ran on a seeded stratified sample of {rows} rows \
+             (--ablation-rows); the whole-set AUC uses every row"
+        ));
     }
     let unpaired: Vec<&str> = table
         .features

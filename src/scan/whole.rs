@@ -4,6 +4,7 @@
 use super::evaluate::{Evaluation, Target, compare, evaluate, roc};
 use super::{Progress, ScanOptions};
 use crate::data::encode::combine_codes;
+use crate::data::sample::stratified_sample;
 use crate::data::{EncodedColumn, FeatureKind};
 use crate::report::{DropOne, RemovalStep, WholeSet};
 use crate::surrogate::{BoostedSurrogate, Scores, Surrogate, cross_fit};
@@ -101,10 +102,10 @@ pub fn scan_whole_set(
     progress.stage(&format!("whole set: {}", target.attribute.name), 1);
     let full = attack(inputs, &all, target)?;
     progress.advance(1);
-    let (drop_one, removal_plan, target_reached) = if options.ablation {
-        ablation(inputs, target, options, &full, progress)
+    let (drop_one, removal_plan, target_reached, ablation_rows) = if options.ablation {
+        sampled_ablation(inputs, target, options, &full, progress)
     } else {
-        (Vec::new(), Vec::new(), false)
+        (Vec::new(), Vec::new(), false, None)
     };
     let interval = full.evaluation.interval();
     Some(WholeSet {
@@ -121,7 +122,64 @@ pub fn scan_whole_set(
         removal_plan,
         target_reached,
         ablation: options.ablation,
+        ablation_rows,
     })
+}
+
+/// Drop-one ablation and removal plan, with the rows they ran on when sampled.
+type AblationResult = (Vec<DropOne>, Vec<RemovalStep>, bool, Option<usize>);
+
+/// The ablation on every row, or, above `ablation_rows` rows, on a seeded
+/// sample stratified by the protected attribute: every drop and every plan
+/// step refits the attacker, so the sample bounds a cost that otherwise grows
+/// with rows × features. The full set is refitted on the sample, so every
+/// comparison (delta, DeLong's paired test, the plan's stopping rule) is
+/// between fits on the same rows.
+fn sampled_ablation(
+    inputs: &AttackInputs<'_>,
+    target: &Target<'_>,
+    options: &ScanOptions,
+    full: &Attack,
+    progress: &dyn Progress,
+) -> AblationResult {
+    let attribute = target.attribute;
+    if attribute.codes.len() <= options.ablation_rows {
+        let (drops, plan, reached) = ablation(inputs, target, options, full, progress);
+        return (drops, plan, reached, None);
+    }
+    let rows = stratified_sample(
+        &attribute.codes,
+        attribute.n_classes(),
+        options.ablation_rows,
+        options.seed,
+    );
+    let sampled_attribute = attribute.select_rows(&rows);
+    let sampled_target = Target::new(&sampled_attribute, options.folds, options.seed);
+    let features: Vec<EncodedColumn> = inputs
+        .features
+        .iter()
+        .map(|f| f.select_rows(&rows))
+        .collect();
+    let sampled_inputs = AttackInputs {
+        features: &features,
+        joints: inputs
+            .joints
+            .iter()
+            .map(|(a, b, joint)| (*a, *b, joint.select_rows(&rows)))
+            .collect(),
+    };
+    let all: Vec<usize> = (0..features.len()).collect();
+    let Some(sampled_full) = attack(&sampled_inputs, &all, &sampled_target) else {
+        return (Vec::new(), Vec::new(), false, Some(rows.len()));
+    };
+    let (drops, plan, reached) = ablation(
+        &sampled_inputs,
+        &sampled_target,
+        options,
+        &sampled_full,
+        progress,
+    );
+    (drops, plan, reached, Some(rows.len()))
 }
 
 /// Drop-one ablation (every feature, DeLong p-value against the full set)
