@@ -261,21 +261,18 @@ fn a_perfect_proxy_fails_the_gate_with_status_one() {
     );
 }
 
+/// The JSON report of a quick demo-fixture scan with `extra` flags; the
+/// demo's planted proxy makes the gate fail (status 1).
+fn demo_scan(extra: &[&str]) -> Value {
+    let base = ["-p", "community", "--pairs", "none", "--quiet"];
+    let (out, json) = scan_json(&demo_fixture(), &[&base[..], extra].concat());
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    json
+}
+
 #[test]
 fn no_ablation_keeps_the_whole_set_attack_and_says_what_was_skipped() {
-    let file = demo_fixture();
-    let (out, json) = scan_json(
-        &file,
-        &[
-            "-p",
-            "community",
-            "--pairs",
-            "none",
-            "--no-ablation",
-            "--quiet",
-        ],
-    );
-    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    let json = demo_scan(&["--no-ablation"]);
     let whole = &json["results"][0]["whole_set"];
     // The demo generator's Bayes AUC is about 0.978 (README, the demo); the
     // attacker without joint pair columns still sits far above chance.
@@ -289,20 +286,7 @@ fn no_ablation_keeps_the_whole_set_attack_and_says_what_was_skipped() {
 
 #[test]
 fn large_data_ablation_runs_on_a_stated_sample() {
-    let file = demo_fixture();
-    let (out, json) = scan_json(
-        &file,
-        &[
-            "-p",
-            "community",
-            "--pairs",
-            "none",
-            "--ablation-rows",
-            "2000",
-            "--quiet",
-        ],
-    );
-    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    let json = demo_scan(&["--ablation-rows", "2000"]);
     let whole = &json["results"][0]["whole_set"];
     // Stratified sample: each class contributes round(2000 · share) rows.
     let rows = whole["ablation_rows"].as_u64().unwrap();
@@ -310,6 +294,7 @@ fn large_data_ablation_runs_on_a_stated_sample() {
     assert!(!whole["drop_one"].as_array().unwrap().is_empty());
     assert!(!whole["removal_plan"].as_array().unwrap().is_empty());
     assert!(json["notes"].to_string().contains("--ablation-rows"));
+    let file = demo_fixture();
     let too_small = telltale(&["scan", &file, "-p", "community", "--ablation-rows", "10"]);
     assert_input_error(&too_small, &["--ablation-rows", "at least"]);
 }

@@ -410,7 +410,7 @@ mod tests {
     use super::*;
     use crate::data::FeatureKind;
     use crate::data::encode::encode_levels;
-    use crate::surrogate::testing::{assert_probability_rows, toy};
+    use crate::surrogate::testing::{assert_probability_rows, folded, max_difference, toy};
 
     fn column(levels: &[&str]) -> EncodedColumn {
         encode_levels(
@@ -512,20 +512,9 @@ mod tests {
             vec![&id, &columns[0]],
         ];
         for set in sets {
-            let folded = FoldedTarget {
-                classes: &target,
-                n_classes: 3,
-                folds: &folds,
-                n_folds: 5,
-            };
-            let fast = model.out_of_fold(&set, folded).unwrap();
-            let slow = crate::surrogate::fold_by_fold(&model, &set, folded).unwrap();
-            let worst = fast
-                .proba
-                .iter()
-                .zip(&slow.proba)
-                .map(|(a, b)| (a - b).abs())
-                .fold(0.0, f64::max);
+            let fast = model.out_of_fold(&set, folded(&target, 3, &folds));
+            let slow = crate::surrogate::fold_by_fold(&model, &set, folded(&target, 3, &folds));
+            let worst = max_difference(&fast.unwrap(), &slow.unwrap());
             assert!(worst < 1e-12, "{}: {worst}", set.len());
         }
     }

@@ -770,7 +770,9 @@ impl LogisticSurrogate {
 mod tests {
     use super::*;
     use crate::data::encode::{encode_integer_coded, encode_levels};
-    use crate::surrogate::testing::{assert_probability_rows, toy};
+    use crate::surrogate::testing::{
+        assert_probability_rows, folded, max_difference, rounded, toy,
+    };
 
     #[test]
     fn one_hot_fit_reproduces_cell_shares_when_counts_dwarf_the_penalty() {
@@ -815,30 +817,12 @@ mod tests {
         // same data as fitting the rows: probabilities agree up to the order
         // of floating-point sums (1e-9 leaves ample room over ~1e-13 seen).
         let (columns, target) = toy(5_000, 3, 8);
-        let rounded: Vec<f64> = columns[0]
-            .raw
-            .as_ref()
-            .unwrap()
-            .iter()
-            .map(|v| (v * 10.0).round() / 10.0)
-            .collect();
-        let rounded = crate::data::encode::encode_numeric("rounded", rounded, 32);
+        let column = rounded(&columns);
         let folds = crate::data::folds::stratified_folds(&target, 3, 5, 0);
-        let folded = FoldedTarget {
-            classes: &target,
-            n_classes: 3,
-            folds: &folds,
-            n_folds: 5,
-        };
         let model = LogisticSurrogate::default();
-        let fast = model.out_of_fold(&[&rounded], folded).unwrap();
-        let slow = fold_by_fold(&model, &[&rounded], folded).unwrap();
-        let worst = fast
-            .proba
-            .iter()
-            .zip(&slow.proba)
-            .map(|(a, b)| (a - b).abs())
-            .fold(0.0, f64::max);
+        let fast = model.out_of_fold(&[&column], folded(&target, 3, &folds));
+        let slow = fold_by_fold(&model, &[&column], folded(&target, 3, &folds));
+        let worst = max_difference(&fast.unwrap(), &slow.unwrap());
         assert!(worst < 1e-9, "{worst}");
     }
 

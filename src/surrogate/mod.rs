@@ -322,6 +322,42 @@ pub(crate) mod testing {
         (columns, target)
     }
 
+    /// Column 0 of `toy` rounded to one decimal, so that values repeat as in
+    /// real data (and the distinct-value paths of the surrogates are taken).
+    pub fn rounded(columns: &[EncodedColumn]) -> EncodedColumn {
+        let values = columns[0]
+            .raw
+            .as_ref()
+            .expect("toy column 0 is numeric")
+            .iter()
+            .map(|v| (v * 10.0).round() / 10.0)
+            .collect();
+        encode_numeric("rounded", values, 32)
+    }
+
+    /// `target` with `n_classes` classes over `folds` (5 folds).
+    pub fn folded<'a>(
+        target: &'a [u32],
+        n_classes: usize,
+        folds: &'a [u8],
+    ) -> super::FoldedTarget<'a> {
+        super::FoldedTarget {
+            classes: target,
+            n_classes,
+            folds,
+            n_folds: 5,
+        }
+    }
+
+    /// Largest absolute difference between two sets of probabilities.
+    pub fn max_difference(a: &super::Scores, b: &super::Scores) -> f64 {
+        a.proba
+            .iter()
+            .zip(&b.proba)
+            .map(|(x, y)| (x - y).abs())
+            .fold(0.0, f64::max)
+    }
+
     /// Asserts every row of `proba` (row-major, `k` per row) is a probability vector.
     pub fn assert_probability_rows(proba: &[f64], k: usize) {
         for row in proba.chunks_exact(k) {

@@ -587,7 +587,7 @@ mod tests {
     use crate::data::folds::stratified_folds;
     use crate::stats::auc::auc_from_scores;
     use crate::surrogate::cross_fit;
-    use crate::surrogate::testing::{assert_probability_rows, toy};
+    use crate::surrogate::testing::{assert_probability_rows, folded, rounded, toy};
 
     #[test]
     fn separable_toy_gets_out_of_fold_auc_one() {
@@ -630,26 +630,14 @@ mod tests {
         // repeat), a categorical column, and a continuous column with too many
         // distinct values, which goes fold by fold.
         let (columns, target) = toy(4_000, 3, 4);
-        let rounded: Vec<f64> = columns[0]
-            .raw
-            .as_ref()
-            .unwrap()
-            .iter()
-            .map(|v| (v * 10.0).round() / 10.0)
-            .collect();
-        let rounded = encode_numeric("rounded", rounded, 32);
+        let rounded = rounded(&columns);
         let folds = stratified_folds(&target, 3, 5, 0);
         let model = TreeSurrogate::default();
         for column in [&rounded, &columns[1], &columns[0]] {
-            let folded = FoldedTarget {
-                classes: &target,
-                n_classes: 3,
-                folds: &folds,
-                n_folds: 5,
-            };
-            let fast = model.out_of_fold(&[column], folded).unwrap();
-            let slow = crate::surrogate::fold_by_fold(&model, &[column], folded).unwrap();
-            assert_eq!(fast, slow, "{}", column.name);
+            let fast = model.out_of_fold(&[column], folded(&target, 3, &folds));
+            let slow =
+                crate::surrogate::fold_by_fold(&model, &[column], folded(&target, 3, &folds));
+            assert_eq!(fast.unwrap(), slow.unwrap(), "{}", column.name);
         }
     }
 
