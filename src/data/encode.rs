@@ -17,7 +17,7 @@
 //!
 //! Missing values get the code after the last bin.
 
-use super::{EncodedColumn, FeatureKind};
+use super::{EncodedColumn, FeatureKind, RawValues};
 use crate::keys::KeyIndex;
 use std::collections::HashMap;
 
@@ -121,7 +121,7 @@ pub fn encode_numeric(name: &str, values: Vec<f64>, q: usize) -> EncodedColumn {
         n_levels,
         labels,
         missing_code,
-        raw: Some(values),
+        raw: Some(RawValues::new(values)),
         missing_count,
     }
 }
@@ -213,7 +213,7 @@ pub fn encode_integer_coded(name: &str, values: Vec<f64>) -> EncodedColumn {
         n_levels: labels.len() as u32,
         labels,
         missing_code,
-        raw: Some(values),
+        raw: Some(RawValues::new(values)),
         missing_count,
     }
 }

@@ -59,7 +59,7 @@ pub struct EncodedColumn {
     /// The code given to missing values, when the column has any.
     pub missing_code: Option<u32>,
     /// Raw values of a numeric column (`NaN` = missing), for models that need them.
-    pub raw: Option<Vec<f64>>,
+    pub raw: Option<RawValues>,
     /// Rows whose value is missing.
     pub missing_count: usize,
 }
@@ -80,14 +80,100 @@ impl EncodedColumn {
     pub fn select_rows(&self, rows: &[usize]) -> Self {
         Self {
             codes: rows.iter().map(|&r| self.codes[r]).collect(),
-            raw: self
-                .raw
-                .as_ref()
-                .map(|raw| rows.iter().map(|&r| raw[r]).collect()),
+            raw: self.raw.as_ref().map(|raw| raw.select_rows(rows)),
             missing_count: self
                 .missing_code
                 .map_or(0, |m| rows.iter().filter(|&&r| self.codes[r] == m).count()),
             ..self.clone()
+        }
+    }
+}
+
+/// Raw values of a numeric column. Real columns are rounded, so most have few
+/// distinct values: each row then keeps a `u32` index into the ascending
+/// distinct values (half the memory of an `f64`, and the grouping that
+/// single-column models fit on); a column with more distinct values than
+/// half its rows keeps the values themselves.
+#[derive(Debug, Clone)]
+pub enum RawValues {
+    /// `index[row]` points into `distinct`; `distinct.len()` marks a missing value.
+    Indexed {
+        distinct: Vec<f64>,
+        index: Vec<u32>,
+    },
+    Dense(Vec<f64>),
+}
+
+impl RawValues {
+    /// Indexes `values` (`NaN` = missing) when at most half of them are distinct.
+    #[must_use]
+    pub fn new(values: Vec<f64>) -> Self {
+        let mut numbering = crate::keys::KeyIndex::with_limit(values.len() / 2);
+        let first_seen: Option<Vec<u32>> = values
+            .iter()
+            .map(|&v| {
+                if v.is_nan() {
+                    Some(u32::MAX)
+                } else {
+                    numbering.number((v + 0.0).to_bits())
+                }
+            })
+            .collect();
+        let Some(first_seen) = first_seen else {
+            return Self::Dense(values);
+        };
+        let seen: Vec<f64> = numbering
+            .keys()
+            .iter()
+            .map(|&b| f64::from_bits(b))
+            .collect();
+        let mut order: Vec<u32> = (0..seen.len() as u32).collect();
+        order.sort_unstable_by(|&a, &b| seen[a as usize].total_cmp(&seen[b as usize]));
+        let mut rank = vec![0u32; seen.len()];
+        for (r, &id) in order.iter().enumerate() {
+            rank[id as usize] = r as u32;
+        }
+        let missing = seen.len() as u32;
+        Self::Indexed {
+            distinct: order.iter().map(|&id| seen[id as usize]).collect(),
+            index: first_seen
+                .into_iter()
+                .map(|id| rank.get(id as usize).copied().unwrap_or(missing))
+                .collect(),
+        }
+    }
+
+    /// The value of `row` (`NaN` = missing).
+    #[must_use]
+    pub fn value(&self, row: usize) -> f64 {
+        match self {
+            Self::Indexed { distinct, index } => distinct
+                .get(index[row] as usize)
+                .copied()
+                .unwrap_or(f64::NAN),
+            Self::Dense(values) => values[row],
+        }
+    }
+
+    /// The ascending distinct values and each row's index into them (missing
+    /// = their number), for an indexed column.
+    #[must_use]
+    pub fn indexed(&self) -> Option<(&[f64], &[u32])> {
+        match self {
+            Self::Indexed { distinct, index } => Some((distinct, index)),
+            Self::Dense(_) => None,
+        }
+    }
+
+    /// Keeps only the given rows, in the given order.
+    #[must_use]
+    pub fn select_rows(&self, rows: &[usize]) -> Self {
+        match self {
+            Self::Indexed { distinct, index } => Self::Indexed {
+                distinct: distinct.clone(),
+                index: rows.iter().map(|&r| index[r]).collect(),
+            },
+            Self::Dense(values) => Self::Dense(rows.iter().map(|&r| values[r]).collect()),
         }
     }
 }
@@ -187,5 +273,32 @@ impl EncodedTable {
     #[must_use]
     pub fn rows(&self) -> usize {
         self.protected.first().map_or(0, |p| p.codes.len())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::RawValues;
+
+    #[test]
+    fn raw_values_are_indexed_when_few_and_read_back_exactly() {
+        let values = vec![2.5, -0.0, f64::NAN, 2.5, 0.0, -1.0, 7.0, 2.5];
+        let raw = RawValues::new(values.clone());
+        let (distinct, index) = raw.indexed().expect("4 distinct of 8 values");
+        // −0 and +0 are one value; missing gets the index past the values.
+        assert_eq!(distinct, &[-1.0, 0.0, 2.5, 7.0]);
+        assert_eq!(index, &[2, 1, 4, 2, 1, 0, 3, 2]);
+        for (row, &v) in values.iter().enumerate() {
+            assert!(raw.value(row) == v || (v.is_nan() && raw.value(row).is_nan()));
+        }
+        assert_eq!(raw.select_rows(&[6, 0]).indexed().unwrap().1, &[3, 2]);
+    }
+
+    #[test]
+    fn mostly_distinct_values_stay_dense() {
+        let values: Vec<f64> = (0..10).map(f64::from).collect();
+        let raw = RawValues::new(values);
+        assert!(raw.indexed().is_none());
+        assert_eq!(raw.value(7), 7.0);
     }
 }

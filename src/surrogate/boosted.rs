@@ -152,7 +152,7 @@ impl Binner {
 /// The raw value, or the ordinal code of a column without raw values (`NaN` = missing).
 fn numeric_value(column: &EncodedColumn, row: usize) -> f64 {
     match &column.raw {
-        Some(raw) => raw[row],
+        Some(raw) => raw.value(row),
         None if Some(column.codes[row]) == column.missing_code => f64::NAN,
         None => f64::from(column.codes[row]),
     }

@@ -26,7 +26,7 @@ use super::{
     Fitted, FoldCounts, FoldedTarget, Scores, Surrogate, SurrogateError, check_inputs,
     class_shares, distinct_values, fold_by_fold,
 };
-use crate::data::{EncodedColumn, FeatureKind};
+use crate::data::{EncodedColumn, FeatureKind, RawValues};
 use crate::keys::KeyIndex;
 use rayon::prelude::*;
 
@@ -78,10 +78,10 @@ impl Block {
 
     /// From the training rows: their observed values sorted into distinct
     /// values with counts.
-    fn fit_numeric(raw: &[f64], train: &[usize]) -> Self {
+    fn fit_numeric(raw: &RawValues, train: &[usize]) -> Self {
         let mut observed: Vec<f64> = train
             .iter()
-            .map(|&r| raw[r])
+            .map(|&r| raw.value(r))
             .filter(|v| !v.is_nan())
             .collect();
         observed.sort_unstable_by(f64::total_cmp);
@@ -155,7 +155,7 @@ impl Block {
     fn push(&self, column: &EncodedColumn, row: usize, base: u32, out: &mut SparseRow) {
         match self {
             Self::Numeric { .. } => {
-                let v = column.raw.as_ref().map_or(f64::NAN, |raw| raw[row]);
+                let v = column.raw.as_ref().map_or(f64::NAN, |raw| raw.value(row));
                 self.push_number(v, base, out);
             }
             Self::OneHot { slot_of_code } => {
@@ -328,9 +328,9 @@ impl Grouping {
 /// The value of `row` in a single column as a hash key: the raw number's
 /// bits (all missing values alike, −0 as +0), or the code.
 fn value_key(column: &EncodedColumn, row: usize) -> u64 {
-    match &column.raw {
-        Some(raw) if raw[row].is_nan() => u64::MAX,
-        Some(raw) => (raw[row] + 0.0).to_bits(),
+    match column.raw.as_ref().map(|raw| raw.value(row)) {
+        Some(v) if v.is_nan() => u64::MAX,
+        Some(v) => (v + 0.0).to_bits(),
         None => u64::from(column.codes[row]),
     }
 }

@@ -15,7 +15,6 @@ pub use logistic::LogisticSurrogate;
 pub use tree::TreeSurrogate;
 
 use crate::data::EncodedColumn;
-use crate::keys::KeyIndex;
 use rayon::prelude::*;
 use thiserror::Error;
 
@@ -181,61 +180,39 @@ impl FoldCounts {
 
 /// One column's rows as indices into its distinct values, ascending, with
 /// missing raw values last (index = number of values). A column of codes has
-/// one value per level, its code (the missing level −1, ordered first); raw
-/// numbers are numbered by hashing, and `None` is returned once they exceed
-/// `limit` distinct values. Single-column surrogates fit on these values'
-/// class counts instead of on rows.
+/// one value per level, its code (the missing level −1, ordered first); a
+/// numeric column has the distinct values it was encoded with, and gives
+/// `None` when they are not indexed or exceed `limit`. Single-column
+/// surrogates fit on these values' class counts instead of on rows.
 pub(crate) fn distinct_values(
     column: &EncodedColumn,
     limit: usize,
 ) -> Option<(Vec<f64>, Vec<u32>)> {
-    let (value_of_id, id_of_row) = match &column.raw {
-        None => {
-            let missing = column.missing_code;
-            let values = (0..column.n_levels)
-                .map(|code| {
-                    if Some(code) == missing {
-                        -1.0
-                    } else {
-                        f64::from(code)
-                    }
-                })
-                .collect::<Vec<f64>>();
-            (values, column.codes.clone())
-        }
-        Some(raw) => {
-            let mut index = KeyIndex::with_limit(limit);
-            let ids = raw
-                .iter()
-                .map(|v| {
-                    if v.is_nan() {
-                        Some(u32::MAX)
-                    } else {
-                        index.number((v + 0.0).to_bits())
-                    }
-                })
-                .collect::<Option<Vec<u32>>>()?;
-            (
-                index.keys().iter().map(|&b| f64::from_bits(b)).collect(),
-                ids,
-            )
-        }
-    };
-    let mut order: Vec<u32> = (0..value_of_id.len() as u32).collect();
-    order.sort_unstable_by(|&a, &b| value_of_id[a as usize].total_cmp(&value_of_id[b as usize]));
-    let mut rank_of = vec![0u32; order.len()];
-    for (rank, &id) in order.iter().enumerate() {
-        rank_of[id as usize] = rank as u32;
+    if let Some(raw) = &column.raw {
+        let (distinct, index) = raw.indexed().filter(|(d, _)| d.len() <= limit)?;
+        return Some((distinct.to_vec(), index.to_vec()));
     }
-    let missing = order.len() as u32;
-    let of_row = id_of_row
+    let missing = column.missing_code;
+    let order: Vec<u32> = missing
         .into_iter()
-        .map(|id| rank_of.get(id as usize).copied().unwrap_or(missing))
+        .chain((0..column.n_levels).filter(|&c| Some(c) != missing))
         .collect();
-    Some((
-        order.iter().map(|&id| value_of_id[id as usize]).collect(),
-        of_row,
-    ))
+    let mut rank_of = vec![0u32; order.len()];
+    for (rank, &code) in order.iter().enumerate() {
+        rank_of[code as usize] = rank as u32;
+    }
+    let values = order
+        .iter()
+        .map(|&c| {
+            if Some(c) == missing {
+                -1.0
+            } else {
+                f64::from(c)
+            }
+        })
+        .collect();
+    let of_row = column.codes.iter().map(|&c| rank_of[c as usize]).collect();
+    Some((values, of_row))
 }
 
 /// Share of each class among the `train` rows (the training-fold prior).
@@ -325,12 +302,9 @@ pub(crate) mod testing {
     /// Column 0 of `toy` rounded to one decimal, so that values repeat as in
     /// real data (and the distinct-value paths of the surrogates are taken).
     pub fn rounded(columns: &[EncodedColumn]) -> EncodedColumn {
-        let values = columns[0]
-            .raw
-            .as_ref()
-            .expect("toy column 0 is numeric")
-            .iter()
-            .map(|v| (v * 10.0).round() / 10.0)
+        let raw = columns[0].raw.as_ref().expect("toy column 0 is numeric");
+        let values = (0..columns[0].codes.len())
+            .map(|row| (raw.value(row) * 10.0).round() / 10.0)
             .collect();
         encode_numeric("rounded", values, 32)
     }

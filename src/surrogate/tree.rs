@@ -43,7 +43,7 @@ impl Default for TreeSurrogate {
 /// ordinal code of a categorical column, with its missing level as −1.
 fn ordinal_value(column: &EncodedColumn, row: usize) -> f64 {
     match &column.raw {
-        Some(raw) => raw[row],
+        Some(raw) => raw.value(row),
         None if Some(column.codes[row]) == column.missing_code => -1.0,
         None => f64::from(column.codes[row]),
     }
