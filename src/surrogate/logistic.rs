@@ -7,11 +7,11 @@
 //! Statistical Learning", §4.4.1 for the Newton/IRLS update). Rows with the
 //! same design row are merged into one weighted pattern first, so a discrete
 //! feature costs O(N) once and then O(levels) per iteration. A single numeric
-//! column with few distinct values (real data is rounded: a few thousand in a
-//! million rows) is fitted per fold on the class counts of its values, taken
-//! from one counting pass for all folds, so each iteration costs O(distinct
-//! values); otherwise a single column merges equal values by hashing, and
-//! several continuous columns keep one pattern per row.
+//! column whose values are indexed (real data is rounded: a few thousand
+//! distinct values in a million rows) is fitted per fold on the class counts
+//! of its values, taken from one counting pass for all folds, so each
+//! iteration costs O(distinct values); other continuous columns keep one
+//! pattern per row.
 //!
 //! Features per column: a numeric or integer-coded column gives its raw value
 //! with training-fold median imputation, plus a missing indicator when the
@@ -27,7 +27,6 @@ use super::{
     class_shares, distinct_values, fold_by_fold,
 };
 use crate::data::{EncodedColumn, FeatureKind, RawValues};
-use crate::keys::KeyIndex;
 use rayon::prelude::*;
 
 /// Patterns beyond this many distinct code combinations are not merged.
@@ -303,38 +302,6 @@ fn pattern_radix(columns: &[&EncodedColumn]) -> Option<Vec<u64>> {
     (discrete && total <= MAX_GROUPED_PATTERNS).then_some(radix)
 }
 
-/// How training rows are merged into patterns.
-enum Grouping {
-    /// Discrete columns with few combinations: the mixed-radix code indexes
-    /// `pattern_of_key` directly.
-    Radix(Vec<u64>),
-    /// One column: rows with the same value (raw bits, or code) are numbered
-    /// by hashing, in the order the patterns are created.
-    Hashed(KeyIndex),
-    /// Every row is its own pattern.
-    Rows,
-}
-
-impl Grouping {
-    fn of(columns: &[&EncodedColumn], train: &[usize]) -> Self {
-        match pattern_radix(columns) {
-            Some(radix) => Self::Radix(radix),
-            None if columns.len() == 1 => Self::Hashed(KeyIndex::with_limit(train.len())),
-            None => Self::Rows,
-        }
-    }
-}
-
-/// The value of `row` in a single column as a hash key: the raw number's
-/// bits (all missing values alike, −0 as +0), or the code.
-fn value_key(column: &EncodedColumn, row: usize) -> u64 {
-    match column.raw.as_ref().map(|raw| raw.value(row)) {
-        Some(v) if v.is_nan() => u64::MAX,
-        Some(v) => (v + 0.0).to_bits(),
-        None => u64::from(column.codes[row]),
-    }
-}
-
 impl Patterns {
     fn build(
         design: &Design,
@@ -343,14 +310,21 @@ impl Patterns {
         k: usize,
         train: &[usize],
     ) -> Self {
-        let mut grouping = Grouping::of(columns, train);
-        let n_keys = match &grouping {
-            Grouping::Radix(radix) => radix
-                .last()
-                .zip(columns.last())
-                .map_or(0, |(&r, c)| r as usize * c.n_levels as usize),
-            _ => 0,
+        let radix = pattern_radix(columns);
+        let key = |row: usize| -> usize {
+            radix.as_ref().map_or(0, |radix| {
+                columns
+                    .iter()
+                    .zip(radix)
+                    .map(|(c, &r)| u64::from(c.codes[row]) * r)
+                    .sum::<u64>() as usize
+            })
         };
+        let n_keys = radix
+            .as_ref()
+            .and_then(|r| r.last().zip(columns.last()))
+            .map_or(0, |(&r, c)| r as usize * c.n_levels as usize);
+        // Without grouping every row is its own pattern (`pattern_of_key` stays empty).
         let mut pattern_of_key = vec![usize::MAX; n_keys];
         let mut patterns = Self {
             start: vec![0],
@@ -358,45 +332,41 @@ impl Patterns {
         };
         let mut x = SparseRow::default();
         for &row in train {
-            let known = match &mut grouping {
-                Grouping::Radix(radix) => {
-                    let key = columns
-                        .iter()
-                        .zip(radix.iter())
-                        .map(|(c, &r)| u64::from(c.codes[row]) * r)
-                        .sum::<u64>() as usize;
-                    let known = pattern_of_key[key];
-                    if known == usize::MAX {
-                        pattern_of_key[key] = patterns.len();
-                    }
-                    (known != usize::MAX).then_some(known)
-                }
-                Grouping::Hashed(index) => index
-                    .number(value_key(columns[0], row))
-                    .map(|p| p as usize)
-                    .filter(|&p| p < patterns.len()),
-                Grouping::Rows => None,
-            };
+            let key = key(row);
+            let known = pattern_of_key
+                .get(key)
+                .copied()
+                .filter(|&p| p != usize::MAX);
             let pattern = known.unwrap_or_else(|| {
+                let new = patterns.len();
+                if let Some(slot) = pattern_of_key.get_mut(key) {
+                    *slot = new;
+                }
                 design.features(columns, row, &mut x);
                 patterns.push(&x, k);
-                patterns.len() - 1
+                new
             });
             patterns.counts[pattern * k + target[row] as usize] += 1.0;
         }
         patterns
     }
 
+    /// Appends a pattern with no rows counted yet.
     fn push(&mut self, x: &SparseRow, k: usize) {
-        self.push_counts(x, &vec![0.0; k]);
+        self.push_features(x);
+        self.counts.extend(std::iter::repeat_n(0.0, k));
     }
 
     /// Appends a pattern with its class counts.
     fn push_counts(&mut self, x: &SparseRow, counts: &[f64]) {
+        self.push_features(x);
+        self.counts.extend_from_slice(counts);
+    }
+
+    fn push_features(&mut self, x: &SparseRow) {
         self.index.extend_from_slice(&x.index);
         self.value.extend_from_slice(&x.value);
         self.start.push(self.index.len());
-        self.counts.extend_from_slice(counts);
     }
 
     fn len(&self) -> usize {
@@ -677,8 +647,8 @@ impl Surrogate for LogisticSurrogate {
         Ok(Box::new(FittedLogistic { design, coef }))
     }
 
-    /// One numeric column with at most a quarter as many distinct values as
-    /// rows: each fold is fitted on the class counts of the distinct values
+    /// One numeric column with indexed values (no more distinct values than
+    /// rows): each fold is fitted on the class counts of the distinct values
     /// (one counting pass for all folds) and scored once per value.
     fn out_of_fold(
         &self,
@@ -687,7 +657,7 @@ impl Surrogate for LogisticSurrogate {
     ) -> Result<Scores, SurrogateError> {
         let rows = folded.classes.len();
         let distinct = match columns {
-            [column] if column.raw.is_some() => distinct_values(column, rows / 4),
+            [column] if column.raw.is_some() => distinct_values(column, rows),
             _ => None,
         };
         let Some((values, of_row)) = distinct else {

@@ -527,10 +527,10 @@ impl Surrogate for TreeSurrogate {
         Ok(Box::new(FittedTree { nodes }))
     }
 
-    /// One column of codes, or of numbers with at most a quarter as many
-    /// distinct values as rows: the same trees grown from per-fold histograms
-    /// of the distinct values (one counting pass for all folds), each fold's
-    /// leaves looked up per value.
+    /// One column of codes, or of indexed numbers with no more distinct values
+    /// than rows: the same trees grown from per-fold histograms of the
+    /// distinct values (one counting pass for all folds), each fold's leaves
+    /// looked up per value.
     fn out_of_fold(
         &self,
         columns: &[&EncodedColumn],
@@ -538,7 +538,7 @@ impl Surrogate for TreeSurrogate {
     ) -> Result<Scores, SurrogateError> {
         let (target, n_classes, folds) = (folded.classes, folded.n_classes, folded.folds);
         let distinct = match columns {
-            [column] => distinct_values(column, target.len() / 4),
+            [column] => distinct_values(column, target.len()),
             _ => None,
         };
         let Some((values, of_row)) = distinct else {
