@@ -244,13 +244,55 @@ fn report_folder_is_never_overwritten_without_force() {
     );
 }
 
+/// The exit status and the report's policy outcome come from one gate: with a
+/// policy that accepts the proxy and sets no whole-set limit, the whole set
+/// still fails at the scan's default limit, in the report as in the status.
+#[test]
+fn exit_status_and_policy_outcome_agree() {
+    let dir = scratch("one-gate");
+    let mut data = String::from("group,area\n");
+    for i in 0..400 {
+        let (group, area) = if i % 2 == 0 {
+            ("a", "north")
+        } else {
+            ("b", "south")
+        };
+        data.push_str(&format!("{group},{area}\n"));
+    }
+    let file = write(&dir, "d.csv", data.as_bytes());
+    let policy = write(
+        &dir,
+        "policy.toml",
+        b"[[accept]]\nfeature = \"area\"\nreason = \"branch staffing\"\nreviewer = \"T. Vell\"\nexpires = \"2999-12-31\"\n",
+    );
+    let (out, json) = scan_json(
+        &file,
+        &[
+            "-p", "group", "--pairs", "none", "--quiet", "--policy", &policy,
+        ],
+    );
+    let failing = json["policy"]["failing"]
+        .as_array()
+        .expect("policy outcome");
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    assert!(
+        failing.len() == 1 && failing[0].as_str().unwrap().contains("whole set"),
+        "{failing:?}"
+    );
+    assert!(stderr(&out).contains("group/whole set"), "{}", stderr(&out));
+}
+
 #[test]
 fn a_perfect_proxy_fails_the_gate_with_status_one() {
     let dir = scratch("gate");
     let file = write(&dir, "d.csv", small_csv().as_bytes());
     let (out, json) = scan_json(&file, &[&["-p", "group"][..], &QUICK].concat());
     assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
-    assert!(stderr(&out).contains("`area` is a proxy"));
+    assert!(
+        stderr(&out).contains("group/area: proxy"),
+        "{}",
+        stderr(&out)
+    );
     assert_eq!(json["results"][0]["features"][0]["flag"], "proxy");
     assert_eq!(json["schema_version"], 1);
     assert!(
@@ -296,7 +338,7 @@ fn large_data_ablation_runs_on_a_stated_sample() {
     assert!(json["notes"].to_string().contains("--ablation-rows"));
     let file = demo_fixture();
     let too_small = telltale(&["scan", &file, "-p", "community", "--ablation-rows", "10"]);
-    assert_input_error(&too_small, &["--ablation-rows", "at least"]);
+    assert_input_error(&too_small, &["ablation rows", "at least"]);
 }
 
 #[test]
@@ -675,4 +717,26 @@ fn policy_acceptance_and_expiry_drive_the_exit_status() {
         b"[thresholds]\nproxy_auc_low = 0.7\nsurprise = 1\n",
     );
     assert_input_error(&run(&broken), &["broken.toml", "line 3"]);
+}
+
+/// `demo` shares `scan`'s validation: no flag value may panic.
+#[test]
+fn demo_validates_its_flags_as_scan_does() {
+    let dir = scratch("demo-flags");
+    let report = dir.join("out").display().to_string();
+    for (flag, value, needle) in [
+        ("--folds", "0", "folds must be between 2 and 50"),
+        ("--folds", "300", "folds must be between 2 and 50"),
+        ("--bins", "1", "bins must be between 2 and 1024"),
+        ("--proxy-auc", "1.5", "between 0.5 and 1"),
+    ] {
+        let out = telltale(&[
+            "demo", "--rows", "200", "--quiet", "--report", &report, flag, value,
+        ]);
+        assert_input_error(&out, &[needle]);
+    }
+    assert!(
+        !dir.join("out").exists(),
+        "nothing written on a usage error"
+    );
 }
