@@ -1,12 +1,15 @@
-//! The report contract and its renderers. Renderers turn a finished
-//! [`Report`] into bytes; they compute no statistics.
+//! The report contract and its renderers. [`layout`] turns a finished
+//! [`Report`] into a format-neutral [`page::Page`]; the Markdown, HTML and
+//! terminal backends turn a page into bytes. None computes a statistic.
 
 pub mod contract;
 pub mod explanation;
 pub mod format;
 pub mod html;
 pub mod json;
+pub mod layout;
 pub mod markdown;
+pub mod page;
 #[cfg(test)]
 mod sample;
 pub mod svg;
