@@ -5,6 +5,7 @@ use super::data_args::DataArgs;
 use super::output::write_one;
 use super::progress::TerminalProgress;
 use super::scan::ScanSettingsArgs;
+use crate::report::page::Backend;
 use crate::report::terminal::TerminalRenderer;
 use crate::scan::explain::explain;
 use anyhow::{Context, Result};

@@ -1,7 +1,7 @@
 //! The evidence on one feature (`telltale explain`) and its page.
 
 use super::format;
-use super::layout::{CAUTION_LABEL, composition_table};
+use super::layout::{CAUTION_LABEL, composition_table, interval_cell, pair_row};
 use super::page::{Block, Cell, Column, KeyValues, Page, Role, Row, Section, Table};
 use super::{FeatureResult, LevelComposition, PairResult};
 use serde::{Deserialize, Serialize};
@@ -79,16 +79,7 @@ impl Explanation {
                 } else {
                     &p.features[0]
                 };
-                Row::from(vec![
-                    Cell::name(other),
-                    Cell::plain(format::auc_interval(
-                        Some(p.auc),
-                        Some(p.auc_low),
-                        Some(p.auc_high),
-                    )),
-                    Cell::plain(format::signed(p.gain, 3)),
-                    Cell::verdict(p.flag),
-                ])
+                pair_row(other.clone(), p)
             })
             .collect();
         Table {
@@ -140,11 +131,7 @@ fn surrogates(f: &FeatureResult) -> Table {
             .map(|(name, i)| {
                 Row::from(vec![
                     Cell::plain(name),
-                    Cell::plain(format::auc_interval(
-                        Some(i.auc),
-                        Some(i.auc_low),
-                        Some(i.auc_high),
-                    )),
+                    interval_cell(i.auc, i.auc_low, i.auc_high),
                 ])
             })
             .collect(),

@@ -1,13 +1,13 @@
 //! `report.html`: one self-contained page (inline CSS and SVG; no script,
 //! font, image or address of any kind) that reads on screen and prints on A4.
 
+use super::Flag;
 use super::format::escape_markup as esc;
-use super::layout::report_page;
 use super::page::{
-    Block, Cell, CellStyle, Chart, Heading, Page, Role, Section, Tone, verdict_tone,
+    Backend, Cell, CellStyle, Chart, Heading, KeyValues, Page, Role, Section, Table, Tone,
+    verdict_tone,
 };
 use super::svg;
-use super::{Flag, Renderer, Report};
 
 /// Self-contained HTML renderer.
 pub struct HtmlRenderer;
@@ -60,39 +60,6 @@ ul { padding-left: 22px; }
 }
 "#;
 
-/// A header row and body rows of already-escaped cells; `numeric` columns align right.
-fn table(class: &str, headers: &[String], rows: &[Vec<String>], numeric: &[bool]) -> String {
-    let align = |c: usize| {
-        if numeric[c] { r#" class="num""# } else { "" }
-    };
-    let head: String = headers
-        .iter()
-        .enumerate()
-        .map(|(c, h)| format!("<th{}>{}</th>", align(c), esc(h)))
-        .collect();
-    let body: String = rows
-        .iter()
-        .map(|row| {
-            let cells: String = row
-                .iter()
-                .enumerate()
-                .map(|(c, cell)| format!("<td{}>{cell}</td>", align(c)))
-                .collect();
-            format!("<tr>{cells}</tr>\n")
-        })
-        .collect();
-    format!(r#"<table class="{class}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"#)
-}
-
-/// Label/value rows.
-fn key_values(rows: &[(String, Cell)]) -> String {
-    let body: String = rows
-        .iter()
-        .map(|(k, v)| format!("<tr><th>{}</th><td>{}</td></tr>\n", esc(k), cell(v)))
-        .collect();
-    format!(r#"<table class="settings"><tbody>{body}</tbody></table>"#)
-}
-
 /// The CSS class of a tone.
 fn tone_class(tone: Tone) -> &'static str {
     match tone {
@@ -143,7 +110,7 @@ fn cell(cell: &Cell) -> String {
 }
 
 /// The SVG of a chart.
-fn chart(chart: &Chart) -> String {
+fn svg_of(chart: &Chart) -> String {
     match chart {
         Chart::LeakageBars {
             title,
@@ -160,51 +127,6 @@ fn chart(chart: &Chart) -> String {
     }
 }
 
-fn paragraph(role: Role, text: &str) -> String {
-    let text = esc(text);
-    match role {
-        Role::Body => format!("<p>{text}</p>"),
-        Role::Headline => format!(r#"<p class="headline">{text}</p>"#),
-        Role::Meta => format!(r#"<p class="meta">{text}</p>"#),
-        Role::Footnote => format!(r#"<p class="footnote"><sup>*</sup> {text}</p>"#),
-    }
-}
-
-fn block(out: &mut String, block: &Block, level: usize) {
-    match block {
-        Block::Paragraph { role, text } => out.push_str(&paragraph(*role, text)),
-        Block::KeyValues(kv) => out.push_str(&key_values(&kv.rows)),
-        Block::Table(t) => {
-            let headers: Vec<String> = t.columns.iter().map(|c| c.title.clone()).collect();
-            let numeric: Vec<bool> = t.columns.iter().map(|c| c.numeric).collect();
-            let rows: Vec<Vec<String>> = t
-                .rows
-                .iter()
-                .map(|r| r.cells.iter().map(cell).collect())
-                .collect();
-            out.push_str(&table(t.name, &headers, &rows, &numeric));
-        }
-        Block::List(items) => {
-            let items: String = items
-                .iter()
-                .map(|i| format!("<li>{}</li>", esc(i)))
-                .collect();
-            out.push_str(&format!("<ul>{items}</ul>"));
-        }
-        Block::Figure { chart: c, caption } => out.push_str(&format!(
-            "<figure>{}<figcaption>{}</figcaption></figure>\n",
-            chart(c),
-            esc(caption)
-        )),
-        Block::Callout { label, text } => out.push_str(&format!(
-            "<aside class=\"caution\" role=\"note\"><strong>{}.</strong> {}</aside>\n",
-            esc(label),
-            esc(text)
-        )),
-        Block::Section(inner) => section(out, inner, level + 1),
-    }
-}
-
 fn heading(level: usize, heading: &Heading) -> String {
     let badge = heading
         .verdict
@@ -213,64 +135,118 @@ fn heading(level: usize, heading: &Heading) -> String {
     format!("<h{level}>{}{badge}</h{level}>", esc(&heading.text))
 }
 
-/// A section at heading `level`; top-level sections are `<section>` elements.
-fn section(out: &mut String, section: &Section, level: usize) {
-    let mut body = String::new();
-    if let Some(h) = &section.heading {
-        body.push_str(&heading(level, h));
-    }
-    for b in &section.blocks {
-        block(&mut body, b, level);
-    }
-    if level > 2 {
-        out.push_str(&body);
-        return;
-    }
-    let class = if section.starts_page {
-        r#" class="protected""#
-    } else {
-        ""
-    };
-    out.push_str(&format!("<section{class}>{body}</section>\n"));
-}
+impl Backend for HtmlRenderer {
+    const FILE_NAME: &'static str = "report.html";
 
-/// The page as one self-contained HTML document.
-#[must_use]
-pub fn render_page(page: &Page) -> String {
-    let title = esc(&page.title);
-    let mut out = format!(
-        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\
-         <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\
-         <title>{title}</title><style>{STYLE}</style></head>\n<body><main><h1>{title}</h1>"
-    );
-    if let Some(subtitle) = &page.subtitle {
-        out.push_str(&format!(r#"<p class="subtitle">{}</p>"#, esc(subtitle)));
-    }
-    for b in &page.lead {
-        block(&mut out, b, 1);
-    }
-    for s in &page.sections {
-        section(&mut out, s, 2);
-    }
-    out.push_str("</main></body></html>\n");
-    out
-}
-
-impl Renderer for HtmlRenderer {
-    fn file_name(&self) -> &'static str {
-        "report.html"
+    fn paragraph(&self, role: Role, text: &str) -> String {
+        let text = esc(text);
+        match role {
+            Role::Body => format!("<p>{text}</p>"),
+            Role::Headline => format!(r#"<p class="headline">{text}</p>"#),
+            Role::Meta => format!(r#"<p class="meta">{text}</p>"#),
+            Role::Footnote => format!(r#"<p class="footnote"><sup>*</sup> {text}</p>"#),
+        }
     }
 
-    fn render(&self, report: &Report) -> String {
-        render_page(&report_page(report))
+    fn key_values(&self, kv: &KeyValues) -> String {
+        let body: String = kv
+            .rows
+            .iter()
+            .map(|(k, v)| format!("<tr><th>{}</th><td>{}</td></tr>\n", esc(k), cell(v)))
+            .collect();
+        format!(r#"<table class="settings"><tbody>{body}</tbody></table>"#)
+    }
+
+    fn table(&self, t: &Table) -> String {
+        let align = |c: usize| {
+            if t.columns[c].numeric {
+                r#" class="num""#
+            } else {
+                ""
+            }
+        };
+        let head: String = t
+            .columns
+            .iter()
+            .enumerate()
+            .map(|(c, column)| format!("<th{}>{}</th>", align(c), esc(&column.title)))
+            .collect();
+        let body: String = t
+            .rows
+            .iter()
+            .map(|row| {
+                let cells: String = row
+                    .cells
+                    .iter()
+                    .enumerate()
+                    .map(|(c, value)| format!("<td{}>{}</td>", align(c), cell(value)))
+                    .collect();
+                format!("<tr>{cells}</tr>\n")
+            })
+            .collect();
+        let name = t.name;
+        format!(
+            r#"<table class="{name}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"#
+        )
+    }
+
+    fn list(&self, items: &[String]) -> String {
+        let items: String = items
+            .iter()
+            .map(|i| format!("<li>{}</li>", esc(i)))
+            .collect();
+        format!("<ul>{items}</ul>")
+    }
+
+    fn callout(&self, label: &str, text: &str) -> String {
+        let (label, text) = (esc(label), esc(text));
+        format!("<aside class=\"caution\" role=\"note\"><strong>{label}.</strong> {text}</aside>\n")
+    }
+
+    fn figure(&self, chart: &Chart, caption: &str) -> String {
+        let (svg, caption) = (svg_of(chart), esc(caption));
+        format!("<figure>{svg}<figcaption>{caption}</figcaption></figure>\n")
+    }
+
+    /// Top-level sections are `<section>` elements; deeper ones only headings.
+    fn section(&self, section: &Section, level: usize, body: &str) -> String {
+        let heading = section
+            .heading
+            .as_ref()
+            .map(|h| heading(level, h))
+            .unwrap_or_default();
+        if level > 2 {
+            return heading + body;
+        }
+        let class = if section.starts_page {
+            r#" class="protected""#
+        } else {
+            ""
+        };
+        format!("<section{class}>{heading}{body}</section>\n")
+    }
+
+    fn document(&self, page: &Page, lead: &str, sections: &str) -> String {
+        let title = esc(&page.title);
+        let subtitle = page
+            .subtitle
+            .as_ref()
+            .map(|s| format!(r#"<p class="subtitle">{}</p>"#, esc(s)))
+            .unwrap_or_default();
+        format!(
+            "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\
+             <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\
+             <title>{title}</title><style>{STYLE}</style></head>\n<body><main><h1>{title}</h1>\
+             {subtitle}{lead}{sections}</main></body></html>\n"
+        )
     }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::format;
     use crate::report::sample::{AWKWARD_NAME, SUPPRESSED_SHARE, sample_report};
+    use crate::report::{Renderer, format};
 
     fn render() -> String {
         HtmlRenderer.render(&sample_report())

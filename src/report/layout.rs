@@ -8,8 +8,8 @@ use super::page::{
 };
 use super::svg::{self, MAX_ROC_CURVES, RocSeries};
 use super::{
-    AddedSource, AucInterval, FeatureResult, LevelComposition, PolicyOutcome, ProtectedResult,
-    Report, WholeSet,
+    AddedSource, AucInterval, FeatureResult, LevelComposition, PairResult, PolicyOutcome,
+    ProtectedResult, Report, WholeSet,
 };
 
 /// Lead-in of the caution every report carries.
@@ -209,18 +209,7 @@ fn pairs_section(result: &ProtectedResult) -> Option<Section<'_>> {
         ],
         rows: top
             .iter()
-            .map(|p| {
-                Row::from(vec![
-                    Cell::name(format!("{} + {}", p.features[0], p.features[1])),
-                    Cell::plain(format::auc_interval(
-                        Some(p.auc),
-                        Some(p.auc_low),
-                        Some(p.auc_high),
-                    )),
-                    Cell::plain(format::signed(p.gain, 3)),
-                    Cell::verdict(p.flag),
-                ])
-            })
+            .map(|p| pair_row(format!("{} + {}", p.features[0], p.features[1]), p))
             .collect(),
     };
     let heading = format!(
@@ -238,6 +227,24 @@ fn pairs_section(result: &ProtectedResult) -> Option<Section<'_>> {
             .to_owned(),
     };
     Some(Section::new(heading, vec![figure, Block::Table(table)]))
+}
+
+/// A pair's row: `label`, its AUC with interval, its gain over the better
+/// single feature and its verdict.
+#[must_use]
+pub fn pair_row(label: String, pair: &PairResult) -> Row {
+    Row::from(vec![
+        Cell::name(label),
+        interval_cell(pair.auc, pair.auc_low, pair.auc_high),
+        Cell::plain(format::signed(pair.gain, 3)),
+        Cell::verdict(pair.flag),
+    ])
+}
+
+/// An AUC with its 95% interval.
+#[must_use]
+pub fn interval_cell(auc: f64, low: f64, high: f64) -> Cell {
+    Cell::plain(format::auc_interval(Some(auc), Some(low), Some(high)))
 }
 
 fn whole_set_section<'a>(
@@ -279,11 +286,7 @@ fn drop_one_section(whole: &WholeSet) -> Option<Section<'static>> {
             .map(|d| {
                 Row::from(vec![
                     Cell::plain(&d.feature),
-                    Cell::plain(format::auc_interval(
-                        Some(d.auc),
-                        Some(d.auc_low),
-                        Some(d.auc_high),
-                    )),
+                    interval_cell(d.auc, d.auc_low, d.auc_high),
                     Cell::plain(format::signed(d.delta, 3)),
                     Cell::plain(format::fixed(d.p_value, 4)),
                 ])
@@ -324,11 +327,7 @@ fn removal_section<'a>(
                     Row::from(vec![
                         Cell::plain((i + 1).to_string()),
                         Cell::name(&s.remove),
-                        Cell::plain(format::auc_interval(
-                            Some(s.auc_after),
-                            Some(s.auc_low),
-                            Some(s.auc_high),
-                        )),
+                        interval_cell(s.auc_after, s.auc_low, s.auc_high),
                     ])
                 })
                 .collect(),
@@ -476,13 +475,7 @@ fn added_source_section(added: &AddedSource) -> Section<'static> {
             pair(added.duplicate_keys_in_base, added.duplicate_keys_in_source),
         ),
     ]);
-    let interval = |a: &AucInterval| {
-        Cell::plain(format::auc_interval(
-            Some(a.auc),
-            Some(a.auc_low),
-            Some(a.auc_high),
-        ))
-    };
+    let interval = |a: &AucInterval| interval_cell(a.auc, a.auc_low, a.auc_high);
     let effects = Table {
         name: "added",
         columns: vec![
@@ -512,9 +505,12 @@ fn added_source_section(added: &AddedSource) -> Section<'static> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::report::Renderer;
+    use crate::report::html::HtmlRenderer;
+    use crate::report::markdown::MarkdownRenderer;
+    use crate::report::page::Backend;
     use crate::report::sample::{AWKWARD_NAME, sample_report};
     use crate::report::terminal::TerminalRenderer;
-    use crate::report::{Renderer, html, markdown};
 
     #[test]
     fn suppressed_count_withholds_every_share_of_the_level() {
@@ -544,8 +540,8 @@ mod tests {
                 format!("About {AWKWARD_NAME}."),
             )],
         ));
-        let md = markdown::render_page(&page);
-        let html = html::render_page(&page);
+        let md = MarkdownRenderer.render_page(&page);
+        let html = HtmlRenderer.render_page(&page);
         let text = TerminalRenderer { colour: false }.render_page(&page);
         for out in [&md, &html, &text] {
             assert!(out.contains("Outcome check"), "{out}");
@@ -557,7 +553,7 @@ mod tests {
     fn full_detail_stays_out_of_the_terminal_summary() {
         let report = sample_report();
         let terminal = TerminalRenderer { colour: false }.render(&report);
-        let markdown = markdown::MarkdownRenderer.render(&report);
+        let markdown = MarkdownRenderer.render(&report);
         for full_only in [
             "Dataset and settings",
             "Drop-one ablation",

@@ -1,9 +1,7 @@
 //! `report.md`: the report as it is pasted into a review ticket or merge
 //! request, with the settings needed to reproduce the run.
 
-use super::layout::report_page;
-use super::page::{Block, Cell, CellStyle, Heading, Page, Role, Section};
-use super::{Renderer, Report};
+use super::page::{Backend, Cell, CellStyle, Heading, KeyValues, Page, Role, Section, Table};
 
 /// GitHub-flavoured Markdown renderer.
 pub struct MarkdownRenderer;
@@ -89,93 +87,76 @@ fn heading(level: usize, heading: &Heading) -> String {
     )
 }
 
-fn block(out: &mut String, block: &Block, level: usize) {
-    match block {
-        Block::Paragraph {
-            role: Role::Headline,
-            text,
-        } => out.push_str(&format!("**{}**\n\n", escape_inline(text))),
-        Block::Paragraph { text, .. } => out.push_str(&format!("{}\n\n", escape(text))),
-        Block::KeyValues(kv) => {
-            let [key, value] = kv.labels.unwrap_or(["", ""]);
-            let rows: Vec<Vec<String>> = kv
-                .rows
-                .iter()
-                .map(|(k, v)| vec![escape_inline(k), cell(v)])
-                .collect();
-            out.push_str(&table(&[key.to_owned(), value.to_owned()], &rows));
+impl Backend for MarkdownRenderer {
+    const FILE_NAME: &'static str = "report.md";
+
+    fn paragraph(&self, role: Role, text: &str) -> String {
+        match role {
+            Role::Headline => format!("**{}**\n\n", escape_inline(text)),
+            _ => format!("{}\n\n", escape(text)),
         }
-        Block::Table(t) => {
-            let headers: Vec<String> = t.columns.iter().map(|c| escape_inline(&c.title)).collect();
-            let rows: Vec<Vec<String>> = t
-                .rows
-                .iter()
-                .map(|r| r.cells.iter().map(cell).collect())
-                .collect();
-            out.push_str(&table(&headers, &rows));
-        }
-        Block::List(items) => {
-            for item in items {
-                out.push_str(&format!("- {}\n", escape(item)));
-            }
-            out.push('\n');
-        }
-        Block::Figure { .. } => {}
-        Block::Callout { label, text } => out.push_str(&format!(
+    }
+
+    fn key_values(&self, kv: &KeyValues) -> String {
+        let [key, value] = kv.labels.unwrap_or(["", ""]);
+        let rows: Vec<Vec<String>> = kv
+            .rows
+            .iter()
+            .map(|(k, v)| vec![escape_inline(k), cell(v)])
+            .collect();
+        table(&[key.to_owned(), value.to_owned()], &rows)
+    }
+
+    fn table(&self, t: &Table) -> String {
+        let headers: Vec<String> = t.columns.iter().map(|c| escape_inline(&c.title)).collect();
+        let rows: Vec<Vec<String>> = t
+            .rows
+            .iter()
+            .map(|r| r.cells.iter().map(cell).collect())
+            .collect();
+        table(&headers, &rows)
+    }
+
+    fn list(&self, items: &[String]) -> String {
+        let lines: String = items.iter().map(|i| format!("- {}\n", escape(i))).collect();
+        lines + "\n"
+    }
+
+    fn callout(&self, label: &str, text: &str) -> String {
+        format!(
             "> **{}.** {}\n\n",
             escape_inline(label),
             escape_inline(text)
-        )),
-        Block::Section(inner) => section(out, inner, level + 1),
-    }
-}
-
-/// A section at heading `level`; left out when nothing in it can be shown.
-fn section(out: &mut String, section: &Section, level: usize) {
-    let mut body = String::new();
-    for b in &section.blocks {
-        block(&mut body, b, level);
-    }
-    if body.is_empty() {
-        return;
-    }
-    if let Some(h) = &section.heading {
-        out.push_str(&heading(level, h));
-    }
-    out.push_str(&body);
-}
-
-/// The page as GitHub-flavoured Markdown.
-#[must_use]
-pub fn render_page(page: &Page) -> String {
-    let mut out = format!("# {}\n\n", escape_inline(&page.title));
-    if let Some(subtitle) = &page.subtitle {
-        out.push_str(&format!("{}\n\n", escape(subtitle)));
-    }
-    for b in &page.lead {
-        block(&mut out, b, 1);
-    }
-    for s in &page.sections {
-        section(&mut out, s, 2);
-    }
-    out
-}
-
-impl Renderer for MarkdownRenderer {
-    fn file_name(&self) -> &'static str {
-        "report.md"
+        )
     }
 
-    fn render(&self, report: &Report) -> String {
-        render_page(&report_page(report))
+    /// A section is left out when nothing in it can be shown (charts only).
+    fn section(&self, section: &Section, level: usize, body: &str) -> String {
+        match &section.heading {
+            _ if body.is_empty() => String::new(),
+            Some(h) => heading(level, h) + body,
+            None => body.to_owned(),
+        }
+    }
+
+    fn document(&self, page: &Page, lead: &str, sections: &str) -> String {
+        let subtitle = page
+            .subtitle
+            .as_ref()
+            .map(|s| format!("{}\n\n", escape(s)))
+            .unwrap_or_default();
+        format!(
+            "# {}\n\n{subtitle}{lead}{sections}",
+            escape_inline(&page.title)
+        )
     }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::format;
     use crate::report::sample::{AWKWARD_NAME, PIPE_NAME, SUPPRESSED_SHARE, sample_report};
+    use crate::report::{Renderer, format};
 
     fn render() -> String {
         MarkdownRenderer.render(&sample_report())

@@ -24,3 +24,14 @@ pub trait Renderer {
     /// The whole document.
     fn render(&self, report: &Report) -> String;
 }
+
+/// Every page format renders a report through its page.
+impl<B: page::Backend> Renderer for B {
+    fn file_name(&self) -> &'static str {
+        B::FILE_NAME
+    }
+
+    fn render(&self, report: &Report) -> String {
+        self.render_page(&layout::report_page(report))
+    }
+}

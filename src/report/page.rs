@@ -335,3 +335,67 @@ pub enum Chart<'a> {
         target_auc: f64,
     },
 }
+
+/// A document format: the syntax of each kind of block and of a section's
+/// frame. The walk through the page is shared ([`Backend::render_page`]).
+pub trait Backend {
+    /// File name of the format inside a report folder, e.g. `report.md`.
+    const FILE_NAME: &'static str;
+
+    /// A paragraph.
+    fn paragraph(&self, role: Role, text: &str) -> String;
+
+    /// Label/value rows.
+    fn key_values(&self, rows: &KeyValues) -> String;
+
+    /// A table.
+    fn table(&self, table: &Table) -> String;
+
+    /// A bulleted list.
+    fn list(&self, items: &[String]) -> String;
+
+    /// A boxed remark.
+    fn callout(&self, label: &str, text: &str) -> String;
+
+    /// A chart; formats that cannot draw leave it out.
+    fn figure(&self, _chart: &Chart, _caption: &str) -> String {
+        String::new()
+    }
+
+    /// A section at heading `level` (2 for top-level sections) around its
+    /// already rendered `body`.
+    fn section(&self, section: &Section, level: usize, body: &str) -> String;
+
+    /// The whole document from the rendered lead blocks and sections.
+    fn document(&self, page: &Page, lead: &str, sections: &str) -> String;
+
+    /// The page in this format.
+    fn render_page(&self, page: &Page) -> String {
+        let lead = blocks(self, &page.lead, 1);
+        let mut sections = String::new();
+        for section in &page.sections {
+            sections.push_str(&nested(self, section, 2));
+        }
+        self.document(page, &lead, &sections)
+    }
+}
+
+/// Blocks in order; nested sections one heading level below `level`.
+fn blocks<B: Backend + ?Sized>(backend: &B, blocks: &[Block], level: usize) -> String {
+    blocks
+        .iter()
+        .map(|block| match block {
+            Block::Paragraph { role, text } => backend.paragraph(*role, text),
+            Block::KeyValues(rows) => backend.key_values(rows),
+            Block::Table(table) => backend.table(table),
+            Block::List(items) => backend.list(items),
+            Block::Figure { chart, caption } => backend.figure(chart, caption),
+            Block::Callout { label, text } => backend.callout(label, text),
+            Block::Section(inner) => nested(backend, inner, level + 1),
+        })
+        .collect()
+}
+
+fn nested<B: Backend + ?Sized>(backend: &B, section: &Section, level: usize) -> String {
+    backend.section(section, level, &blocks(backend, &section.blocks, level))
+}

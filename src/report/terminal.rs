@@ -1,11 +1,10 @@
 //! `report.txt` and the console summary: aligned plain-text tables, with
 //! ANSI colour only when the caller says the output is a terminal.
 
-use super::layout::report_page;
+use super::Flag;
 use super::page::{
-    Block, CellStyle, Detail, Heading, Page, Role, Row, Section, Table, Tone, verdict_tone,
+    Backend, CellStyle, Detail, KeyValues, Page, Role, Row, Section, Table, Tone, verdict_tone,
 };
-use super::{Renderer, Report};
 
 /// Plain-text renderer; `colour` adds ANSI styles (decide it with
 /// `std::io::IsTerminal` on the destination stream).
@@ -60,20 +59,21 @@ impl TerminalRenderer {
         }
     }
 
-    fn heading(&self, out: &mut String, heading: &Heading) {
-        out.push('\n');
-        out.push_str(&self.paint(Style::Heading, &heading.text));
-        if let Some(flag) = heading.verdict {
-            let word = self.paint(Style::Tone(verdict_tone(flag)), flag.as_str());
-            out.push_str(&format!(" ({word})"));
-        }
-        out.push('\n');
+    /// A heading line after a blank line, with its verdict if any.
+    fn heading(&self, text: &str, verdict: Option<Flag>) -> String {
+        let verdict = verdict
+            .map(|flag| {
+                let word = self.paint(Style::Tone(verdict_tone(flag)), flag.as_str());
+                format!(" ({word})")
+            })
+            .unwrap_or_default();
+        format!("\n{}{verdict}\n", self.paint(Style::Heading, text))
     }
 
     /// Columns padded to their widest cell, numeric columns right-aligned so
     /// decimals line up, verdicts and toned cells coloured; rows outside the
     /// summary left out, and the table with them when none is left.
-    fn table(&self, table: &Table) -> String {
+    fn aligned(&self, table: &Table) -> String {
         let rows: Vec<&Row> = table
             .rows
             .iter()
@@ -118,91 +118,65 @@ impl TerminalRenderer {
         }
         out
     }
-
-    fn block(&self, out: &mut String, block: &Block) {
-        match block {
-            Block::Paragraph {
-                role: Role::Headline,
-                text,
-            } => {
-                out.push_str(&self.paint(Style::Headline, &wrap(text, "  ")));
-                out.push('\n');
-            }
-            Block::Paragraph {
-                role: Role::Footnote,
-                ..
-            }
-            | Block::Figure { .. } => {}
-            Block::Paragraph { text, .. } => {
-                out.push_str(&wrap(text, "  "));
-                out.push('\n');
-            }
-            Block::KeyValues(kv) => {
-                for (key, value) in &kv.rows {
-                    out.push_str(&format!("  {key}: {}\n", value.text));
-                }
-            }
-            Block::Table(table) => out.push_str(&self.table(table)),
-            Block::List(items) => {
-                for item in items {
-                    // A hanging indent: continuation lines align with the text, not the dash.
-                    out.push_str("  - ");
-                    out.push_str(wrap(item, "    ").trim_start());
-                    out.push('\n');
-                }
-            }
-            Block::Callout { label, text } => {
-                out.push('\n');
-                out.push_str(&self.paint(Style::Heading, label));
-                out.push('\n');
-                out.push_str(&wrap(text, "  "));
-                out.push('\n');
-            }
-            Block::Section(inner) => self.section(out, inner),
-        }
-    }
-
-    /// A section of the summary; full-detail sections are left out.
-    fn section(&self, out: &mut String, section: &Section) {
-        if section.detail == Detail::Full {
-            return;
-        }
-        match &section.heading {
-            Some(heading) => self.heading(out, heading),
-            None => out.push('\n'),
-        }
-        for block in &section.blocks {
-            self.block(out, block);
-        }
-    }
-
-    /// The page as aligned plain text: the title, its sections, and the
-    /// lead blocks (the caution) last, where a console leaves them in view.
-    #[must_use]
-    pub fn render_page(&self, page: &Page) -> String {
-        let mut out = self.paint(Style::Heading, &page.title);
-        out.push('\n');
-        if let Some(subtitle) = &page.subtitle {
-            out.push_str(subtitle);
-            out.push('\n');
-        }
-        for section in &page.sections {
-            self.section(&mut out, section);
-        }
-        for block in &page.lead {
-            self.block(&mut out, block);
-        }
-        out
-    }
 }
 
-impl Renderer for TerminalRenderer {
-    fn file_name(&self) -> &'static str {
-        "report.txt"
+impl Backend for TerminalRenderer {
+    const FILE_NAME: &'static str = "report.txt";
+
+    /// Footnotes explain marks the summary does not draw; they are left out.
+    fn paragraph(&self, role: Role, text: &str) -> String {
+        let wrapped = wrap(text, "  ");
+        match role {
+            Role::Headline => self.paint(Style::Headline, &wrapped) + "\n",
+            Role::Footnote => String::new(),
+            Role::Body | Role::Meta => wrapped + "\n",
+        }
     }
 
-    fn render(&self, report: &Report) -> String {
-        self.render_page(&report_page(report))
+    fn key_values(&self, kv: &KeyValues) -> String {
+        kv.rows
+            .iter()
+            .map(|(key, value)| format!("  {key}: {}\n", value.text))
+            .collect()
+    }
+
+    fn table(&self, table: &Table) -> String {
+        self.aligned(table)
+    }
+
+    /// A hanging indent: continuation lines align with the text, not the dash.
+    fn list(&self, items: &[String]) -> String {
+        items
+            .iter()
+            .map(|item| format!("  - {}\n", wrap(item, "    ").trim_start()))
+            .collect()
+    }
+
+    fn callout(&self, label: &str, text: &str) -> String {
+        self.heading(label, None) + &wrap(text, "  ") + "\n"
+    }
+
+    /// Full-detail sections are left out of the summary.
+    fn section(&self, section: &Section, _level: usize, body: &str) -> String {
+        match &section.heading {
+            _ if section.detail == Detail::Full => String::new(),
+            Some(heading) => self.heading(&heading.text, heading.verdict) + body,
+            None => format!("\n{body}"),
+        }
+    }
+
+    /// The title, the sections, then the lead blocks (the caution), where a
+    /// console leaves them in view.
+    fn document(&self, page: &Page, lead: &str, sections: &str) -> String {
+        let subtitle = page
+            .subtitle
+            .as_ref()
+            .map(|s| format!("{s}\n"))
+            .unwrap_or_default();
+        format!(
+            "{}\n{subtitle}{sections}{lead}",
+            self.paint(Style::Heading, &page.title)
+        )
     }
 }
 
@@ -240,6 +214,7 @@ fn wrap(text: &str, indent: &str) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::report::Renderer;
     use crate::report::sample::{AWKWARD_NAME, sample_report};
 
     fn render(colour: bool) -> String {

@@ -4,9 +4,9 @@
 
 use crate::report::format;
 use crate::report::layout::names_or_none;
-use crate::report::markdown;
+use crate::report::markdown::MarkdownRenderer;
 use crate::report::page::{
-    Block, Cell, CellStyle, Column, Detail, Page, Role, Row, Section, Table, Tone,
+    Backend, Block, Cell, CellStyle, Column, Detail, Page, Role, Row, Section, Table, Tone,
 };
 use crate::report::terminal::TerminalRenderer;
 use crate::report::{FeatureResult, Flag, ProtectedResult, Report, SCHEMA_VERSION};
@@ -781,5 +781,5 @@ pub fn render_diff_text(diff: &ReportDiff, colour: bool) -> String {
 /// Markdown rendering of a diff, for a review ticket or a pull request.
 #[must_use]
 pub fn render_diff_markdown(diff: &ReportDiff) -> String {
-    markdown::render_page(&diff.page())
+    MarkdownRenderer.render_page(&diff.page())
 }
