@@ -189,25 +189,16 @@ fn diff_lists_added_and_removed_features_attributes_and_flag_changes() {
     assert_eq!(diff.protected[2].features_removed, ["postcode"]);
 }
 
+/// A report on one feature for protected attribute `sex`.
+fn single_feature(feature: FeatureResult, sha256: &str) -> Report {
+    report(vec![protected("sex", vec![feature], None)], sha256)
+}
+
 /// Two reports differing only in one feature's AUC, with SEs 0.03 and 0.04 so
 /// that √(0.03² + 0.04²) = 0.05 exactly and z = change / 0.05.
 fn auc_pair(z: f64) -> (Report, Report) {
-    let old = report(
-        vec![protected(
-            "sex",
-            vec![feature("x", 0.60, 0.03, Flag::Clear)],
-            None,
-        )],
-        "aaaa",
-    );
-    let new = report(
-        vec![protected(
-            "sex",
-            vec![feature("x", 0.60 + z * 0.05, 0.04, Flag::Clear)],
-            None,
-        )],
-        "bbbb",
-    );
+    let old = single_feature(feature("x", 0.60, 0.03, Flag::Clear), "aaaa");
+    let new = single_feature(feature("x", 0.60 + z * 0.05, 0.04, Flag::Clear), "bbbb");
     (old, new)
 }
 
@@ -323,22 +314,8 @@ fn diff_markdown_escapes_names_in_tables() {
     // GFM splits table rows at unescaped `|` (GitHub Flavored Markdown spec
     // 0.29, §4.10 "Tables"), so a name holding one must be escaped to keep
     // the row's column count.
-    let old = report(
-        vec![protected(
-            "sex",
-            vec![feature("a|b", 0.55, 0.01, Flag::Clear)],
-            None,
-        )],
-        "same",
-    );
-    let new = report(
-        vec![protected(
-            "sex",
-            vec![feature("a|b", 0.80, 0.01, Flag::Proxy)],
-            None,
-        )],
-        "same",
-    );
+    let old = single_feature(feature("a|b", 0.55, 0.01, Flag::Clear), "same");
+    let new = single_feature(feature("a|b", 0.80, 0.01, Flag::Proxy), "same");
     let markdown = render_diff_markdown(&compare(&old, &new, ALPHA));
     let rows: Vec<&str> = markdown
         .lines()

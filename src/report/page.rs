@@ -14,7 +14,8 @@ pub struct Page<'a> {
     pub title: String,
     /// A line under the title (tool, rows), if any.
     pub subtitle: Option<String>,
-    /// Blocks shown before the first section, e.g. the caution.
+    /// Blocks that frame the document, e.g. the caution: documents show them
+    /// before the first section, the terminal summary after the last.
     pub lead: Vec<Block<'a>>,
     /// Top-level sections in reading order.
     pub sections: Vec<Section<'a>>,
