@@ -6,9 +6,11 @@ use super::output::write_one;
 use super::progress::TerminalProgress;
 use super::scan::ScanSettingsArgs;
 use crate::pipeline;
-use crate::report::explanation::render_text;
+use crate::report::page::Backend;
+use crate::report::terminal::TerminalRenderer;
 use anyhow::{Context, Result};
 use clap::Args;
+use std::io::IsTerminal;
 use std::path::PathBuf;
 
 #[derive(Debug, Args)]
@@ -34,8 +36,11 @@ pub fn run(args: &ExplainArgs) -> Result<Status> {
     let explanations = pipeline::explain_file(&args.data.data, &args.feature, &options, &progress)?;
     let to_stdout = args.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
     if !to_stdout {
+        let terminal = TerminalRenderer {
+            colour: std::io::stdout().is_terminal(),
+        };
         for explanation in &explanations {
-            print!("{}", render_text(explanation));
+            print!("{}", terminal.render_page(&explanation.page()));
         }
     }
     if let Some(path) = &args.json {
