@@ -68,17 +68,28 @@ pub struct Settings {
     pub pairs: String,
     pub target_auc: f64,
     pub command: String,
+    /// Smallest protected class (rows) for which AUC flags and gates are
+    /// issued (`--min-class`); below it the attribute's flags are withheld.
+    #[serde(default)]
+    pub min_class: u64,
+    /// How feature and pair AUC intervals are made (method and replicates).
+    #[serde(default)]
+    pub interval_method: String,
+    /// Which surrogate the verdicts rest on and how it was chosen.
+    #[serde(default)]
+    pub verdict_surrogate: String,
 }
 
 /// Flag thresholds (DESIGN §3 defaults are common practice, not a standard).
+/// The lines apply to the AUC interval, never to the number of levels:
+/// mutual information is reported as information only.
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq)]
 pub struct Thresholds {
     /// `proxy` when the AUC interval's lower bound reaches this.
     pub proxy_auc_low: f64,
-    /// `review` when the AUC interval's lower bound reaches this...
+    /// `review` when the AUC interval's lower bound reaches this; `clear`
+    /// only when its upper bound is below it.
     pub review_auc_low: f64,
-    /// ...or when adjusted mutual information reaches this.
-    pub review_ami: f64,
 }
 
 impl Default for Thresholds {
@@ -86,17 +97,23 @@ impl Default for Thresholds {
         Self {
             proxy_auc_low: 0.70,
             review_auc_low: 0.60,
-            review_ami: 0.05,
         }
     }
 }
 
-/// Verdict on one feature or pair.
+/// Verdict on one feature or pair, read off its AUC interval.
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Eq, PartialOrd, Ord)]
 #[serde(rename_all = "lowercase")]
 pub enum Flag {
+    /// The whole interval lies below the review line: shown not to be a proxy at that line.
     Clear,
+    /// Not resolved with this data: the interval straddles the review line,
+    /// cannot be estimated, or the attribute's smallest class is below the
+    /// minimum class size so no flag is issued.
+    Unresolved,
+    /// The lower bound reaches the review line.
     Review,
+    /// The lower bound reaches the proxy line.
     Proxy,
 }
 
@@ -105,6 +122,7 @@ impl Flag {
     pub fn as_str(self) -> &'static str {
         match self {
             Self::Clear => "clear",
+            Self::Unresolved => "unresolved",
             Self::Review => "review",
             Self::Proxy => "proxy",
         }
@@ -130,6 +148,23 @@ pub struct ProtectedResult {
     pub entropy_nats: f64,
     /// The one-sentence answer to "does dropping the attribute hide it?".
     pub headline: String,
+    /// Smallest AUC a single feature (or pair) needs for its 95% lower bound
+    /// to clear the review line with 80% power at these class sizes
+    /// (Hanley & McNeil 1982 standard error × `fitting_inflation`); `null`
+    /// when even an AUC of 1 would not.
+    #[serde(default)]
+    pub detectable_auc: Option<f64>,
+    /// Measured ratio of the fitting-inclusive to the DeLong standard error
+    /// (median over the features), used in `detectable_auc`.
+    #[serde(default)]
+    pub fitting_inflation: Option<f64>,
+    /// `detectable_auc` in a sentence, for every renderer.
+    #[serde(default)]
+    pub power_statement: String,
+    /// Why no AUC flag or gate is issued for this attribute (its smallest
+    /// class is below `settings.min_class`); `null` when flags are issued.
+    #[serde(default)]
+    pub flags_withheld: Option<String>,
     pub features: Vec<FeatureResult>,
     pub pairs: Vec<PairResult>,
     pub whole_set: Option<WholeSet>,
@@ -156,19 +191,23 @@ pub struct FeatureResult {
     pub nmi: f64,
     pub heldout_info_nats: Option<f64>,
     pub auc: Option<f64>,
+    /// 95% interval including the fitting variance (see
+    /// `settings.interval_method`); `null` when not estimable.
     pub auc_low: Option<f64>,
     pub auc_high: Option<f64>,
-    /// DeLong standard error of `auc` (lets `diff` test changes).
+    /// Standard error behind `auc_low`/`auc_high` (lets `diff` test changes).
     pub auc_se: Option<f64>,
+    /// DeLong standard error of the same AUC (scores taken as fixed), for comparison.
+    #[serde(default)]
+    pub auc_delong_se: Option<f64>,
     /// Hand & Till's M, multi-class attributes only.
     pub hand_till: Option<f64>,
     pub ber: Option<f64>,
+    /// The surrogate `auc` and the verdict come from (fixed in advance, see
+    /// `settings.verdict_surrogate`).
     pub surrogate: Option<String>,
-    /// Out-of-fold AUC of every surrogate tried.
+    /// Out-of-fold AUC of every surrogate tried (information only).
     pub surrogates: BTreeMap<String, f64>,
-    /// The same with intervals, for `explain` and the HTML report.
-    #[serde(default)]
-    pub surrogate_intervals: BTreeMap<String, AucInterval>,
     pub flag: Flag,
     /// Set when a review policy accepts this feature.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -198,13 +237,30 @@ pub struct LevelComposition {
 pub struct PairResult {
     pub features: [String; 2],
     pub auc: f64,
-    pub auc_low: f64,
-    pub auc_high: f64,
-    pub auc_se: f64,
-    /// AUC of the pair minus the better single feature's AUC.
+    /// 95% interval including the fitting variance; `null` when not estimable.
+    pub auc_low: Option<f64>,
+    pub auc_high: Option<f64>,
+    pub auc_se: Option<f64>,
+    /// AUC of the pair minus the better of its two features' AUCs, the same
+    /// (frequency) surrogate on the same rows.
     pub gain: f64,
+    /// 95% interval of `gain` from the same paired bootstrap replicates;
+    /// `null` when not estimable. Only a gain whose interval lies above 0
+    /// counts as a joint effect.
+    #[serde(default)]
+    pub gain_low: Option<f64>,
+    #[serde(default)]
+    pub gain_high: Option<f64>,
     pub heldout_info_nats: Option<f64>,
     pub flag: Flag,
+}
+
+impl PairResult {
+    /// Whether the pair shows a joint effect: its gain's interval lies above 0.
+    #[must_use]
+    pub fn gain_is_resolved(&self) -> bool {
+        self.gain_low.is_some_and(|low| low > 0.0)
+    }
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]

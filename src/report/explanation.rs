@@ -58,23 +58,32 @@ pub fn render_text(e: &Explanation) -> String {
         f.heldout_info_nats
             .map_or("n/a".to_string(), |v| format!("{v:.4} nats"))
     );
-    let _ = writeln!(out, "\nsurrogate      AUC    95% interval");
-    for (name, i) in &f.surrogate_intervals {
-        let _ = writeln!(
-            out,
-            "{name:<12} {:.3}   {:.3}–{:.3}",
-            i.auc, i.auc_low, i.auc_high
-        );
+    let _ = writeln!(
+        out,
+        "\nverdict: {} (surrogate {})",
+        f.flag.as_str(),
+        f.surrogate.as_deref().unwrap_or("none")
+    );
+    let _ = writeln!(
+        out,
+        "surrogate      AUC (information only; the verdict uses the interval above)"
+    );
+    for (name, auc) in &f.surrogates {
+        let _ = writeln!(out, "{name:<12} {auc:.3}");
     }
     if !e.partners.is_empty() {
-        let _ = writeln!(out, "\nbest partners   pair AUC   gain");
+        let _ = writeln!(out, "\nbest partners    pair AUC   gain [95% interval]");
         for p in &e.partners {
             let other = if p.features[0] == f.name {
                 &p.features[1]
             } else {
                 &p.features[0]
             };
-            let _ = writeln!(out, "{other:<16} {:.3}   {:+.3}", p.auc, p.gain);
+            let gain = match (p.gain_low, p.gain_high) {
+                (Some(l), Some(h)) if l < h => format!("{:+.3} [{l:+.3}, {h:+.3}]", p.gain),
+                _ => format!("{:+.3} [not estimable]", p.gain),
+            };
+            let _ = writeln!(out, "{other:<16} {:.3}   {gain}", p.auc);
         }
     }
     let _ = writeln!(

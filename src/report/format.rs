@@ -33,8 +33,8 @@ pub fn percent(share: f64) -> String {
 #[must_use]
 pub fn auc_interval(auc: Option<f64>, low: Option<f64>, high: Option<f64>) -> String {
     match (auc, low, high) {
-        (Some(a), Some(l), Some(h)) => format!("{a:.3} [{l:.3}, {h:.3}]"),
-        (Some(a), _, _) => format!("{a:.3}"),
+        (Some(a), Some(l), Some(h)) if l < h => format!("{a:.3} [{l:.3}, {h:.3}]"),
+        (Some(a), _, _) => format!("{a:.3} [not estimable]"),
         _ => NOT_COMPUTED.to_owned(),
     }
 }
@@ -114,17 +114,37 @@ pub fn feature_cells(feature: &FeatureResult) -> [String; 7] {
 }
 
 /// Headers of the pair table.
-pub const PAIR_HEADERS: [&str; 4] = ["pair", "AUC [95% CI]", "gain", "flag"];
+pub const PAIR_HEADERS: [&str; 4] = ["pair", "AUC [95% CI]", "gain [95% CI]", "flag"];
 
 /// One row of the pair table, in [`PAIR_HEADERS`] order.
 #[must_use]
 pub fn pair_cells(pair: &PairResult) -> [String; 4] {
     [
         format!("{} + {}", pair.features[0], pair.features[1]),
-        auc_interval(Some(pair.auc), Some(pair.auc_low), Some(pair.auc_high)),
-        signed(pair.gain, 3),
+        auc_interval(Some(pair.auc), pair.auc_low, pair.auc_high),
+        gain_interval(pair),
         pair.flag.as_str().to_owned(),
     ]
+}
+
+/// A pair's gain with its interval; a gain whose interval does not lie
+/// above 0 is marked as no joint effect.
+#[must_use]
+pub fn gain_interval(pair: &PairResult) -> String {
+    let gain = signed(pair.gain, 3);
+    match (pair.gain_low, pair.gain_high) {
+        (Some(l), Some(h)) if l < h && pair.gain_is_resolved() => {
+            format!("{gain} [{}, {}]", signed(l, 3), signed(h, 3))
+        }
+        (Some(l), Some(h)) if l < h => {
+            format!(
+                "{gain} [{}, {}] no joint effect",
+                signed(l, 3),
+                signed(h, 3)
+            )
+        }
+        _ => format!("{gain} [not estimable]"),
+    }
 }
 
 /// One reproducibility setting: a label and its value; `literal` values
@@ -170,10 +190,13 @@ pub fn settings(report: &Report) -> Vec<Setting> {
         plain(
             "Thresholds",
             format!(
-                "proxy: AUC lower bound ≥ {:.2}; review: AUC lower bound ≥ {:.2} or AMI ≥ {:.2}",
-                t.proxy_auc_low, t.review_auc_low, t.review_ami
+                "proxy: AUC lower bound ≥ {:.2}; review: AUC lower bound ≥ {:.2}; clear: upper bound < {:.2}; otherwise unresolved",
+                t.proxy_auc_low, t.review_auc_low, t.review_auc_low
             ),
         ),
+        plain("Minimum class", format!("{} rows", s.min_class)),
+        plain("Intervals", s.interval_method.clone()),
+        plain("Verdict surrogate", s.verdict_surrogate.clone()),
         plain("Pairs", s.pairs.clone()),
         plain("Target AUC", format!("{:.2}", s.target_auc)),
         plain(

@@ -41,6 +41,7 @@ pub fn flag_colour(flag: Flag) -> &'static str {
         Flag::Proxy => "#b3261e",
         Flag::Review => "#d98c00",
         Flag::Clear => "#5e8f6e",
+        Flag::Unresolved => "#8a8f98",
     }
 }
 
@@ -242,7 +243,7 @@ fn diamond(canvas: &mut Canvas, at: (f64, f64)) {
 /// Flag swatches, the interval whisker and the accepted mark, in one row at `y`.
 fn bar_legend(canvas: &mut Canvas, y: f64) {
     let mut x = 20.0;
-    for flag in [Flag::Proxy, Flag::Review, Flag::Clear] {
+    for flag in [Flag::Proxy, Flag::Review, Flag::Unresolved, Flag::Clear] {
         canvas.rect((x, y - 9.0), (14.0, 10.0), flag_colour(flag), None);
         canvas.text((x + 19.0, y), flag.as_str(), Font::new(11.0, "start"));
         x += 30.0 + text_width(flag.as_str(), 11.0);
@@ -250,7 +251,7 @@ fn bar_legend(canvas: &mut Canvas, y: f64) {
     canvas.line((x, y - 4.0), (x + 24.0, y - 4.0), INK, 1.5, false);
     canvas.line((x, y - 8.0), (x, y), INK, 1.5, false);
     canvas.line((x + 24.0, y - 8.0), (x + 24.0, y), INK, 1.5, false);
-    let whisker = "95% DeLong interval";
+    let whisker = "95% interval (fitting included)";
     canvas.text((x + 30.0, y), whisker, Font::new(11.0, "start"));
     x += 46.0 + text_width(whisker, 11.0);
     diamond(canvas, (x, y - 4.0));
@@ -509,7 +510,9 @@ pub fn pair_heatmap(title: &str, pairs: &[&PairResult]) -> String {
         .iter()
         .flat_map(|p| {
             let (a, b) = (p.features[0].as_str(), p.features[1].as_str());
-            [((a, b), p.gain), ((b, a), p.gain)]
+            // Only a gain whose interval lies above 0 is shown as joint leakage.
+            let gain = if p.gain_is_resolved() { p.gain } else { 0.0 };
+            [((a, b), gain), ((b, a), gain)]
         })
         .collect();
     let limit = gains.values().fold(0.01_f64, |m, g| m.max(g.abs()));

@@ -42,6 +42,7 @@ impl Style {
             Flag::Proxy => Self::Proxy,
             Flag::Review => Self::Review,
             Flag::Clear => Self::Clear,
+            Flag::Unresolved => Self::Muted,
         }
     }
 }
@@ -248,7 +249,7 @@ impl Renderer for TerminalRenderer {
 }
 
 fn flag_style(cell: &str) -> Option<Style> {
-    [Flag::Proxy, Flag::Review, Flag::Clear]
+    [Flag::Proxy, Flag::Review, Flag::Unresolved, Flag::Clear]
         .into_iter()
         .find(|f| f.as_str() == cell)
         .map(Style::for_flag)
