@@ -264,7 +264,9 @@ fn exit_status_and_policy_outcome_agree() {
 fn a_perfect_proxy_fails_the_gate_with_status_one() {
     let dir = scratch("gate");
     let file = write(&dir, "d.csv", small_csv().as_bytes());
-    let (out, json) = scan_json(&file, &[&["-p", "group"][..], &QUICK].concat());
+    // 20 rows per class: below the default minimum class size, so it is lowered.
+    let quick = [&["-p", "group", "--min-class", "20"][..], &QUICK].concat();
+    let (out, json) = scan_json(&file, &quick);
     assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
     assert!(
         stderr(&out).contains("group/area: proxy"),
@@ -328,6 +330,8 @@ fn piped_output_has_no_progress_bars() {
         &file,
         "-p",
         "group",
+        "--min-class",
+        "20",
         "--pairs",
         "none",
         "--no-whole-set",

@@ -16,6 +16,8 @@ use telltale::review::{
 };
 
 const ALPHA: f64 = 0.05;
+/// The documented default minimum effect size of `diff`.
+const MIN_EFFECT: f64 = telltale::review::diff::DEFAULT_MIN_EFFECT;
 
 fn feature(name: &str, auc: f64, se: f64, flag: Flag) -> FeatureResult {
     FeatureResult {
@@ -32,11 +34,11 @@ fn feature(name: &str, auc: f64, se: f64, flag: Flag) -> FeatureResult {
         auc_low: Some(auc - 1.959_964 * se),
         auc_high: Some(auc + 1.959_964 * se),
         auc_se: Some(se),
+        auc_delong_se: None,
         hand_till: None,
         ber: Some(0.45),
         surrogate: Some("frequency".to_string()),
         surrogates: BTreeMap::from([("frequency".to_string(), auc)]),
-        surrogate_intervals: BTreeMap::new(),
         flag,
         accepted: None,
         composition: None,
@@ -71,6 +73,10 @@ fn protected(name: &str, features: Vec<FeatureResult>, whole: Option<WholeSet>) 
         positive: Some("a".to_string()),
         entropy_nats: std::f64::consts::LN_2,
         headline: String::new(),
+        detectable_auc: None,
+        fitting_inflation: None,
+        power_statement: String::new(),
+        flags_withheld: None,
         features,
         pairs: Vec::new(),
         whole_set: whole,
@@ -102,6 +108,9 @@ fn report(results: Vec<ProtectedResult>, sha256: &str) -> Report {
             pairs: "all".to_string(),
             target_auc: 0.6,
             command: "scan applications.csv --protected community".to_string(),
+            min_class: 28,
+            interval_method: String::new(),
+            verdict_surrogate: String::new(),
         },
         results,
         skipped_columns: Vec::new(),
@@ -160,7 +169,7 @@ fn new_report() -> Report {
 
 #[test]
 fn diff_lists_added_and_removed_features_attributes_and_flag_changes() {
-    let diff = compare(&old_report(), &new_report(), ALPHA);
+    let diff = compare(&old_report(), &new_report(), ALPHA, MIN_EFFECT);
     assert_eq!(diff.protected_added, ["sex"]);
     assert_eq!(diff.protected_removed, ["ethnicity"]);
     let community = &diff.protected[0];
@@ -216,7 +225,7 @@ fn auc_change_z_and_p_match_the_normal_distribution() {
         (-2.575_829, 0.01, true),
     ] {
         let (old, new) = auc_pair(z);
-        let diff = compare(&old, &new, ALPHA);
+        let diff = compare(&old, &new, ALPHA, MIN_EFFECT);
         let change = &diff.protected[0].auc_changes[0];
         let got_z = change.z.expect("both SEs present");
         let got_p = change.p_value.expect("both SEs present");
@@ -232,7 +241,7 @@ fn auc_change_z_and_p_match_the_normal_distribution() {
 fn missing_standard_error_gives_no_test() {
     let (old, mut new) = auc_pair(3.0);
     new.results[0].features[0].auc_se = None;
-    let change = compare(&old, &new, ALPHA).protected[0].auc_changes[0].clone();
+    let change = compare(&old, &new, ALPHA, MIN_EFFECT).protected[0].auc_changes[0].clone();
     assert!(change.change.is_some());
     assert_eq!(
         (change.z, change.p_value, change.significant),
@@ -244,7 +253,7 @@ fn missing_standard_error_gives_no_test() {
 // unless its acceptance is active, or on a significant rise of the whole-set AUC.
 #[test]
 fn gate_fails_on_a_new_proxy_and_not_on_an_old_one() {
-    let diff = compare(&old_report(), &new_report(), ALPHA);
+    let diff = compare(&old_report(), &new_report(), ALPHA, MIN_EFFECT);
     assert!(diff.gate_failed());
     let reasons = diff.gate_reasons();
     assert_eq!(reasons.len(), 1, "{reasons:?}");
@@ -252,7 +261,7 @@ fn gate_fails_on_a_new_proxy_and_not_on_an_old_one() {
 
     let mut still_proxy = new_report();
     still_proxy.results[0].features[1].flag = Flag::Review;
-    assert!(!compare(&old_report(), &still_proxy, ALPHA).gate_failed());
+    assert!(!compare(&old_report(), &still_proxy, ALPHA, MIN_EFFECT).gate_failed());
 }
 
 #[test]
@@ -262,10 +271,10 @@ fn gate_fails_when_the_whole_set_auc_rises_significantly() {
     old.results[0].whole_set = Some(whole_set(0.70, 0.03));
     // z = 0.15 / 0.05 = 3 → p ≈ 0.0027 (A&S Table 26.1: Φ(3) = 0.998650102).
     new.results[0].whole_set = Some(whole_set(0.85, 0.04));
-    let rise = compare(&old, &new, ALPHA);
+    let rise = compare(&old, &new, ALPHA, MIN_EFFECT);
     assert!(rise.protected[0].whole_set.as_ref().unwrap().significant);
     assert!(rise.gate_failed());
-    let fall = compare(&new, &old, ALPHA);
+    let fall = compare(&new, &old, ALPHA, MIN_EFFECT);
     assert!(fall.protected[0].whole_set.as_ref().unwrap().significant);
     assert!(!fall.gate_failed(), "a significant fall is an improvement");
 }
@@ -275,7 +284,7 @@ fn differing_settings_raise_a_warning() {
     let old = old_report();
     let mut new = old_report();
     new.settings.folds = 10;
-    let diff = compare(&old, &new, ALPHA);
+    let diff = compare(&old, &new, ALPHA, MIN_EFFECT);
     let folds = diff
         .context
         .iter()
@@ -291,7 +300,7 @@ fn differing_settings_raise_a_warning() {
 
 #[test]
 fn renderings_name_the_gate_and_the_changes() {
-    let diff = compare(&old_report(), &new_report(), ALPHA);
+    let diff = compare(&old_report(), &new_report(), ALPHA, MIN_EFFECT);
     let plain = render_diff_text(&diff, false);
     assert!(plain.contains("Gate: FAILED."), "{plain}");
     let age_row: Vec<&str> = plain
@@ -316,7 +325,7 @@ fn diff_markdown_escapes_names_in_tables() {
     // the row's column count.
     let old = single_feature(feature("a|b", 0.55, 0.01, Flag::Clear), "same");
     let new = single_feature(feature("a|b", 0.80, 0.01, Flag::Proxy), "same");
-    let markdown = render_diff_markdown(&compare(&old, &new, ALPHA));
+    let markdown = render_diff_markdown(&compare(&old, &new, ALPHA, MIN_EFFECT));
     let rows: Vec<&str> = markdown
         .lines()
         .filter(|l| l.starts_with("| a\\|b |"))
@@ -411,7 +420,7 @@ fn expiry_turns_acceptance_inactive_and_flips_the_gate() {
         "{outcome:?}"
     );
     assert_eq!(on_last_day.policy.as_ref(), Some(&outcome));
-    assert!(!compare(&old_report(), &on_last_day, ALPHA).gate_failed());
+    assert!(!compare(&old_report(), &on_last_day, ALPHA, MIN_EFFECT).gate_failed());
 
     let mut day_after = on_last_day.clone();
     let outcome = rules.apply(&mut day_after, "2027-07-01");
@@ -424,7 +433,7 @@ fn expiry_turns_acceptance_inactive_and_flips_the_gate() {
     );
     let accepted = day_after.results[0].features[1].accepted.as_ref().unwrap();
     assert!(!accepted.active && accepted.reviewer == "R. Okafor");
-    assert!(compare(&old_report(), &day_after, ALPHA).gate_failed());
+    assert!(compare(&old_report(), &day_after, ALPHA, MIN_EFFECT).gate_failed());
 }
 
 #[test]
@@ -447,7 +456,8 @@ fn policy_fails_unaccepted_proxies_and_a_leaky_whole_set() {
 }
 
 // Flag rule (DESIGN §3, common practice): proxy when auc_low ≥ proxy_auc_low,
-// review when auc_low ≥ review_auc_low or AMI ≥ review_ami.
+// review when auc_low ≥ review_auc_low, clear when auc_high < review_auc_low,
+// otherwise unresolved; the number of levels (AMI) plays no part.
 #[test]
 fn threshold_override_changes_flags() {
     let mut scanned = new_report();
@@ -460,9 +470,11 @@ fn threshold_override_changes_flags() {
     assert_eq!(scanned.settings.thresholds.review_auc_low, 0.60, "kept");
 
     let mut scanned = new_report();
-    // occupation: auc_low = 0.58 − 0.0392 < 0.60 and AMI 0.01: clear by default,
-    // review once review_ami drops to 0.01.
-    policy("[thresholds]\nreview_ami = 0.01\n").apply(&mut scanned, "2027-01-01");
+    // occupation: interval 0.58 ± 0.0392 = (0.5408, 0.6192) straddles 0.60:
+    // unresolved by default, review once the review line drops to 0.54.
+    policy("[thresholds]\nreview_auc_low = 0.60\n").apply(&mut scanned, "2027-01-01");
+    assert_eq!(scanned.results[1].features[0].flag, Flag::Unresolved);
+    policy("[thresholds]\nreview_auc_low = 0.54\n").apply(&mut scanned, "2027-01-01");
     assert_eq!(scanned.results[1].features[0].flag, Flag::Review);
 }
 

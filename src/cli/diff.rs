@@ -2,7 +2,9 @@
 
 use super::Status;
 use super::output::write_one;
-use crate::review::diff::{compare, load_report, render_diff_markdown, render_diff_text};
+use crate::review::diff::{
+    DEFAULT_MIN_EFFECT, compare, load_report, render_diff_markdown, render_diff_text,
+};
 use anyhow::{Result, bail};
 use clap::Args;
 use std::io::IsTerminal;
@@ -17,6 +19,9 @@ pub struct DiffArgs {
     /// Significance level of the AUC change tests.
     #[arg(long, default_value_t = 0.05)]
     pub alpha: f64,
+    /// Smallest AUC change called significant, however small its p-value.
+    #[arg(long, default_value_t = DEFAULT_MIN_EFFECT, value_name = "AUC")]
+    pub min_effect: f64,
     /// Also write the comparison as Markdown to this file (`-` for standard output instead of text).
     #[arg(long, value_name = "PATH")]
     pub markdown: Option<PathBuf>,
@@ -34,7 +39,13 @@ pub fn run(args: &DiffArgs) -> Result<Status> {
     }
     let old = load_report(&args.old)?;
     let new = load_report(&args.new)?;
-    let diff = compare(&old, &new, args.alpha);
+    if !(0.0..1.0).contains(&args.min_effect) {
+        bail!(
+            "--min-effect must be between 0 and 1, got {}",
+            args.min_effect
+        );
+    }
+    let diff = compare(&old, &new, args.alpha, args.min_effect);
     let is_stdout = |p: &Option<PathBuf>| p.as_ref().is_some_and(|p| p.as_os_str() == "-");
     if !is_stdout(&args.markdown) && !is_stdout(&args.json) {
         print!(

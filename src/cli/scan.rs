@@ -39,9 +39,11 @@ pub struct ScanSettingsArgs {
     /// Flag `review` when the AUC interval's lower bound reaches this.
     #[arg(long, default_value_t = 0.60)]
     pub review_auc: f64,
-    /// Flag `review` when adjusted mutual information reaches this.
-    #[arg(long, default_value_t = 0.05)]
-    pub review_ami: f64,
+    /// Smallest protected class (rows) for which AUC flags and the gate are
+    /// issued; below it the report says why none are. The default is the
+    /// class size at which an AUC of 0.80 clears the review line with 80% power.
+    #[arg(long, default_value_t = crate::scan::DEFAULT_MIN_CLASS, value_name = "ROWS")]
+    pub min_class: u64,
     /// Fail (exit 1) when the whole-set AUC's lower bound reaches this.
     #[arg(long, default_value_t = 0.70)]
     pub whole_set_auc: f64,
@@ -74,13 +76,13 @@ impl ScanSettingsArgs {
             thresholds: Thresholds {
                 proxy_auc_low: self.proxy_auc,
                 review_auc_low: self.review_auc,
-                review_ami: self.review_ami,
                 whole_set_auc_low: self.whole_set_auc,
             },
             min_cell,
             whole_set: !self.no_whole_set,
             ablation: !self.no_ablation,
             ablation_rows: self.ablation_rows,
+            min_class: self.min_class,
             ..ScanOptions::default()
         }
     }

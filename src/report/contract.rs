@@ -88,17 +88,28 @@ pub struct Settings {
     pub target_auc: f64,
     /// The command line as typed.
     pub command: String,
+    /// Smallest protected class (rows) for which AUC flags and gates are
+    /// issued (`--min-class`); below it the attribute's flags are withheld.
+    #[serde(default)]
+    pub min_class: u64,
+    /// How feature and pair AUC intervals are made (method and replicates).
+    #[serde(default)]
+    pub interval_method: String,
+    /// Which surrogate the verdicts rest on and how it was chosen.
+    #[serde(default)]
+    pub verdict_surrogate: String,
 }
 
 /// Flag thresholds (DESIGN §3 defaults are common practice, not a standard).
+/// The lines apply to the AUC interval, never to the number of levels:
+/// mutual information is reported as information only.
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq)]
 pub struct Thresholds {
     /// `proxy` when the AUC interval's lower bound reaches this.
     pub proxy_auc_low: f64,
-    /// `review` when the AUC interval's lower bound reaches this...
+    /// `review` when the AUC interval's lower bound reaches this; `clear`
+    /// only when its upper bound is below it.
     pub review_auc_low: f64,
-    /// ...or when adjusted mutual information reaches this.
-    pub review_ami: f64,
     /// The gate fails when the whole-set AUC interval's lower bound reaches this
     /// (see `review::gate::gate_failures`). Reports written before this field
     /// existed used the default.
@@ -115,18 +126,24 @@ impl Default for Thresholds {
         Self {
             proxy_auc_low: 0.70,
             review_auc_low: 0.60,
-            review_ami: 0.05,
             whole_set_auc_low: 0.70,
         }
     }
 }
 
-/// Verdict on one feature or pair.
+/// Verdict on one feature or pair, read off its AUC interval.
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Eq, PartialOrd, Ord)]
 #[serde(rename_all = "lowercase")]
 pub enum Flag {
+    /// The whole interval lies below the review line: shown not to be a proxy at that line.
     Clear,
+    /// Not resolved with this data: the interval straddles the review line,
+    /// cannot be estimated, or the attribute's smallest class is below the
+    /// minimum class size so no flag is issued.
+    Unresolved,
+    /// The lower bound reaches the review line.
     Review,
+    /// The lower bound reaches the proxy line.
     Proxy,
 }
 
@@ -135,6 +152,7 @@ impl Flag {
     pub fn as_str(self) -> &'static str {
         match self {
             Self::Clear => "clear",
+            Self::Unresolved => "unresolved",
             Self::Review => "review",
             Self::Proxy => "proxy",
         }
@@ -165,6 +183,23 @@ pub struct ProtectedResult {
     pub entropy_nats: f64,
     /// The one-sentence answer to "does dropping the attribute hide it?".
     pub headline: String,
+    /// Smallest AUC a single feature (or pair) needs for its 95% lower bound
+    /// to clear the review line with 80% power at these class sizes
+    /// (Hanley & McNeil 1982 standard error × `fitting_inflation`); `null`
+    /// when even an AUC of 1 would not.
+    #[serde(default)]
+    pub detectable_auc: Option<f64>,
+    /// Measured ratio of the fitting-inclusive to the DeLong standard error
+    /// (median over the features), used in `detectable_auc`.
+    #[serde(default)]
+    pub fitting_inflation: Option<f64>,
+    /// `detectable_auc` in a sentence, for every renderer.
+    #[serde(default)]
+    pub power_statement: String,
+    /// Why no AUC flag or gate is issued for this attribute (its smallest
+    /// class is below `settings.min_class`); `null` when flags are issued.
+    #[serde(default)]
+    pub flags_withheld: Option<String>,
     /// Every feature alone (`scan::singles::scan_singles`), highest AUC first.
     pub features: Vec<FeatureResult>,
     /// Scanned pairs (`scan::pairs::scan_pairs`), highest gain first.
@@ -209,24 +244,25 @@ pub struct FeatureResult {
     pub heldout_info_nats: Option<f64>,
     /// Out-of-fold AUC of the reported surrogate (`scan::evaluate::evaluate`).
     pub auc: Option<f64>,
-    /// Lower end of its 95% interval.
+    /// 95% interval including the fitting variance (see
+    /// `settings.interval_method`); `null` when not estimable.
     pub auc_low: Option<f64>,
     /// Upper end of its 95% interval.
     pub auc_high: Option<f64>,
-    /// DeLong standard error of `auc` (lets `diff` test changes).
+    /// Standard error behind `auc_low`/`auc_high` (lets `diff` test changes).
     pub auc_se: Option<f64>,
+    /// DeLong standard error of the same AUC (scores taken as fixed), for comparison.
+    #[serde(default)]
+    pub auc_delong_se: Option<f64>,
     /// Hand & Till's M, multi-class attributes only.
     pub hand_till: Option<f64>,
     /// Balanced error rate of the class-balanced decision on the out-of-fold scores (`stats::ber::balanced_error_rate`).
     pub ber: Option<f64>,
-    /// The surrogate whose AUC is reported (`frequency`, `logistic`, `tree`).
+    /// The surrogate `auc` and the verdict come from (fixed in advance, see
+    /// `settings.verdict_surrogate`).
     pub surrogate: Option<String>,
-    /// Out-of-fold AUC of every surrogate tried.
+    /// Out-of-fold AUC of every surrogate tried (information only).
     pub surrogates: BTreeMap<String, f64>,
-    /// The same with intervals, for `explain` and the HTML report.
-    #[serde(default)]
-    pub surrogate_intervals: BTreeMap<String, AucInterval>,
-    /// The verdict (`scan::flag_for`, or a policy's thresholds).
     pub flag: Flag,
     /// Set when a review policy accepts this feature.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -260,18 +296,34 @@ pub struct PairResult {
     pub features: [String; 2],
     /// Out-of-fold AUC of the pair surrogate.
     pub auc: f64,
-    /// Lower end of its 95% interval.
-    pub auc_low: f64,
-    /// Upper end of its 95% interval.
-    pub auc_high: f64,
+    /// 95% interval including the fitting variance; `null` when not estimable.
+    pub auc_low: Option<f64>,
+    /// Upper end of the interval.
+    pub auc_high: Option<f64>,
     /// Standard error behind the interval.
-    pub auc_se: f64,
-    /// AUC of the pair minus the better single feature's AUC.
+    pub auc_se: Option<f64>,
+    /// AUC of the pair minus the better of its two features' AUCs, the same
+    /// (frequency) surrogate on the same rows.
     pub gain: f64,
-    /// H(A) minus the pair surrogate's held-out log-loss, nats.
+    /// 95% interval of `gain` from the same paired bootstrap replicates;
+    /// `null` when not estimable. Only a gain whose interval lies above 0
+    /// counts as a joint effect.
+    #[serde(default)]
+    pub gain_low: Option<f64>,
+    /// Upper end of the gain's interval.
+    #[serde(default)]
+    pub gain_high: Option<f64>,
     pub heldout_info_nats: Option<f64>,
-    /// The pair rule (`scan::pair_flag`).
+    /// The verdict on the pair's interval (`scan::flag_for`).
     pub flag: Flag,
+}
+
+impl PairResult {
+    /// Whether the pair shows a joint effect: its gain's interval lies above 0.
+    #[must_use]
+    pub fn gain_is_resolved(&self) -> bool {
+        self.gain_low.is_some_and(|low| low > 0.0)
+    }
 }
 
 /// The boosted attacker on every feature (`scan::whole::scan_whole_set`).

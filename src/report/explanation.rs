@@ -1,7 +1,7 @@
 //! The evidence on one feature (`telltale explain`) and its page.
 
 use super::format;
-use super::layout::{CAUTION_LABEL, composition_table, interval_cell, pair_row};
+use super::layout::{CAUTION_LABEL, composition_table, pair_row};
 use super::page::{Block, Cell, Column, KeyValues, Page, Role, Row, Section, Table};
 use super::{FeatureResult, LevelComposition, PairResult};
 use serde::{Deserialize, Serialize};
@@ -120,20 +120,19 @@ fn measures(f: &FeatureResult) -> Block<'static> {
     })
 }
 
-/// Every surrogate's out-of-fold AUC with its interval.
+/// Every surrogate's out-of-fold AUC: information only, the verdict rests on
+/// the surrogate fixed in advance and its interval.
 fn surrogates(f: &FeatureResult) -> Table {
     Table {
         name: "surrogates",
-        columns: vec![Column::text("surrogate"), Column::numeric("AUC [95% CI]")],
+        columns: vec![
+            Column::text("surrogate"),
+            Column::numeric("AUC (information only)"),
+        ],
         rows: f
-            .surrogate_intervals
+            .surrogates
             .iter()
-            .map(|(name, i)| {
-                Row::from(vec![
-                    Cell::plain(name),
-                    interval_cell(i.auc, i.auc_low, i.auc_high),
-                ])
-            })
+            .map(|(name, auc)| Row::from(vec![Cell::plain(name), Cell::plain(format!("{auc:.3}"))]))
             .collect(),
     }
 }

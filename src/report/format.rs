@@ -35,9 +35,27 @@ pub fn percent(share: f64) -> String {
 #[must_use]
 pub fn auc_interval(auc: Option<f64>, low: Option<f64>, high: Option<f64>) -> String {
     match (auc, low, high) {
-        (Some(a), Some(l), Some(h)) => format!("{a:.3} [{l:.3}, {h:.3}]"),
-        (Some(a), _, _) => format!("{a:.3}"),
+        (Some(a), Some(l), Some(h)) if l < h => format!("{a:.3} [{l:.3}, {h:.3}]"),
+        (Some(a), _, _) => format!("{a:.3} [not estimable]"),
         _ => NOT_COMPUTED.to_owned(),
+    }
+}
+
+/// A pair's gain with its interval; a gain whose interval does not lie
+/// above 0 is marked as no joint effect.
+#[must_use]
+pub fn gain_interval(pair: &PairResult) -> String {
+    let gain = signed(pair.gain, 3);
+    match (pair.gain_low, pair.gain_high) {
+        (Some(l), Some(h)) if l < h => {
+            let joint = if pair.gain_is_resolved() {
+                ""
+            } else {
+                " no joint effect"
+            };
+            format!("{gain} [{}, {}]{joint}", signed(l, 3), signed(h, 3))
+        }
+        _ => format!("{gain} [not estimable]"),
     }
 }
 
@@ -133,10 +151,13 @@ pub fn settings(report: &Report) -> Vec<Setting> {
         plain(
             "Thresholds",
             format!(
-                "proxy: AUC lower bound ≥ {:.2}; review: AUC lower bound ≥ {:.2} or AMI ≥ {:.2}",
-                t.proxy_auc_low, t.review_auc_low, t.review_ami
+                "proxy: AUC lower bound ≥ {:.2}; review: AUC lower bound ≥ {:.2}; clear: upper bound < {:.2}; otherwise unresolved",
+                t.proxy_auc_low, t.review_auc_low, t.review_auc_low
             ),
         ),
+        plain("Minimum class", format!("{} rows", s.min_class)),
+        plain("Intervals", s.interval_method.clone()),
+        plain("Verdict surrogate", s.verdict_surrogate.clone()),
         plain("Pairs", s.pairs.clone()),
         plain("Target AUC", format!("{:.2}", s.target_auc)),
         plain(

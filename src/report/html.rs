@@ -36,10 +36,12 @@ code { font-family: ui-monospace, "DejaVu Sans Mono", monospace; font-size: 0.92
 .tone-alarm { color: #b3261e; }
 .tone-caution { color: #d98c00; }
 .tone-calm { color: #5e8f6e; }
+.tone-muted { color: #6b717a; }
 .flag { display: inline-block; min-width: 54px; padding: 0 6px; border-radius: 3px; color: #fff; text-align: center; font-size: 0.85em; font-weight: 600; }
 .flag.tone-alarm { background: #b3261e; }
 .flag.tone-caution { background: #d98c00; }
 .flag.tone-calm { background: #5e8f6e; }
+.flag.tone-muted { background: #8a8f98; }
 .accepted { font-weight: 600; }
 td.suppressed { color: var(--muted); font-style: italic; }
 figure { margin: 14px 0 20px; }
@@ -66,6 +68,7 @@ fn tone_class(tone: Tone) -> &'static str {
         Tone::Alarm => "tone-alarm",
         Tone::Caution => "tone-caution",
         Tone::Calm => "tone-calm",
+        Tone::Muted => "tone-muted",
     }
 }
 

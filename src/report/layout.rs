@@ -204,7 +204,7 @@ fn pairs_section(result: &ProtectedResult) -> Option<Section<'_>> {
         columns: vec![
             Column::text("pair"),
             Column::numeric("AUC [95% CI]"),
-            Column::numeric("gain"),
+            Column::numeric("gain [95% CI]"),
             Column::text("flag"),
         ],
         rows: top
@@ -235,8 +235,12 @@ fn pairs_section(result: &ProtectedResult) -> Option<Section<'_>> {
 pub fn pair_row(label: String, pair: &PairResult) -> Row {
     Row::from(vec![
         Cell::name(label),
-        interval_cell(pair.auc, pair.auc_low, pair.auc_high),
-        Cell::plain(format::signed(pair.gain, 3)),
+        Cell::plain(format::auc_interval(
+            Some(pair.auc),
+            pair.auc_low,
+            pair.auc_high,
+        )),
+        Cell::plain(format::gain_interval(pair)),
         Cell::verdict(pair.flag),
     ])
 }

@@ -110,10 +110,12 @@ pub enum Tone {
     Caution,
     /// Nothing to act on.
     Calm,
+    /// Not resolved either way: neither an alarm nor a clearance.
+    Muted,
 }
 
 /// Every verdict, in the order legends list them.
-pub const VERDICTS: [Flag; 3] = [Flag::Proxy, Flag::Review, Flag::Clear];
+pub const VERDICTS: [Flag; 4] = [Flag::Proxy, Flag::Review, Flag::Unresolved, Flag::Clear];
 
 /// The tone of a verdict: the one place a new [`Flag`] needs a rendering arm.
 #[must_use]
@@ -122,6 +124,7 @@ pub fn verdict_tone(flag: Flag) -> Tone {
         Flag::Proxy => Tone::Alarm,
         Flag::Review => Tone::Caution,
         Flag::Clear => Tone::Calm,
+        Flag::Unresolved => Tone::Muted,
     }
 }
 

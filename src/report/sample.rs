@@ -41,6 +41,7 @@ fn feature(name: &str, kind: &str, auc: Option<f64>, ami: f64, flag: Flag) -> Fe
         auc_low: auc.map(|a| a - half_width),
         auc_high: auc.map(|a| a + half_width),
         auc_se: auc.map(|_| half_width / 1.96),
+        auc_delong_se: auc.map(|_| half_width / 1.96 / 1.3),
         hand_till: None,
         ber: auc.map(|a| 1.0 - a),
         surrogate: auc.map(|_| "frequency".to_owned()),
@@ -52,7 +53,6 @@ fn feature(name: &str, kind: &str, auc: Option<f64>, ami: f64, flag: Flag) -> Fe
                 ])
             })
             .unwrap_or_default(),
-        surrogate_intervals: BTreeMap::new(),
         flag,
         accepted: None,
         composition: None,
@@ -107,7 +107,13 @@ fn features() -> Vec<FeatureResult> {
             Flag::Clear,
         ),
         feature("has_card", "boolean", Some(0.512), 0.0003, Flag::Clear),
-        feature("customer_ref", "identifier-like", None, 0.0, Flag::Clear),
+        feature(
+            "customer_ref",
+            "identifier-like",
+            None,
+            0.0,
+            Flag::Unresolved,
+        ),
     ]
 }
 
@@ -115,10 +121,12 @@ fn pair(a: &str, b: &str, auc: f64, gain: f64, flag: Flag) -> PairResult {
     PairResult {
         features: [a.to_owned(), b.to_owned()],
         auc,
-        auc_low: auc - 0.02,
-        auc_high: auc + 0.02,
-        auc_se: 0.01,
+        auc_low: Some(auc - 0.02),
+        auc_high: Some(auc + 0.02),
+        auc_se: Some(0.01),
         gain,
+        gain_low: Some(gain - 0.012),
+        gain_high: Some(gain + 0.012),
         heldout_info_nats: Some(gain * 0.5),
         flag,
     }
@@ -190,6 +198,10 @@ fn sex_result() -> ProtectedResult {
         entropy_nats: 0.693,
         headline: "Dropping sex does not hide it: the other features recover it with AUC 0.902."
             .into(),
+        detectable_auc: Some(0.62),
+        fitting_inflation: Some(1.3),
+        power_statement: "At these class sizes this screen detects a feature or pair with AUC 0.62 or more with 80% power.".into(),
+        flags_withheld: None,
         features: features(),
         pairs: pairs(),
         whole_set: Some(whole_set()),
@@ -218,7 +230,17 @@ fn age_result() -> ProtectedResult {
         positive: None,
         entropy_nats: 0.67,
         headline: "Dropping age band mostly hides it: no feature set was scored.".into(),
-        features: vec![feature("income", "numeric", Some(0.58), 0.01, Flag::Clear)],
+        detectable_auc: Some(0.63),
+        fitting_inflation: Some(1.3),
+        power_statement: "At these class sizes this screen detects a feature or pair with AUC 0.63 or more with 80% power.".into(),
+        flags_withheld: None,
+        features: vec![feature(
+            "income",
+            "numeric",
+            Some(0.58),
+            0.01,
+            Flag::Unresolved,
+        )],
         pairs: Vec::new(),
         whole_set: None,
     }
@@ -250,6 +272,9 @@ pub fn sample_report() -> Report {
             pairs: "top".into(),
             target_auc: 0.60,
             command: "telltale scan applications.csv --protected sex --report out/".into(),
+            min_class: 28,
+            interval_method: "Poisson bootstrap of the cross-fit, 200 replicates".into(),
+            verdict_surrogate: "frequency".into(),
         },
         results: vec![sex_result(), age_result()],
         skipped_columns: vec![SkippedColumnInfo {

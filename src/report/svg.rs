@@ -41,6 +41,7 @@ fn flag_colour(flag: Flag) -> &'static str {
         Tone::Alarm => "#b3261e",
         Tone::Caution => "#d98c00",
         Tone::Calm => "#5e8f6e",
+        Tone::Muted => "#8a8f98",
     }
 }
 
@@ -250,7 +251,7 @@ fn bar_legend(canvas: &mut Canvas, y: f64) {
     canvas.line((x, y - 4.0), (x + 24.0, y - 4.0), INK, 1.5, false);
     canvas.line((x, y - 8.0), (x, y), INK, 1.5, false);
     canvas.line((x + 24.0, y - 8.0), (x + 24.0, y), INK, 1.5, false);
-    let whisker = "95% DeLong interval";
+    let whisker = "95% interval (fitting included)";
     canvas.text((x + 30.0, y), whisker, Font::new(11.0, "start"));
     x += 46.0 + text_width(whisker, 11.0);
     diamond(canvas, (x, y - 4.0));
@@ -499,6 +500,9 @@ fn pair_features<'a>(pairs: &[&'a PairResult], limit: usize) -> Vec<&'a str> {
     names
 }
 
+/// Gain at which the heat map's colour saturates.
+const HEATMAP_GAIN_SCALE: f64 = 0.25;
+
 /// Heat map of pair gains (pair AUC minus the better single AUC) over the
 /// features that appear in `pairs` (give them largest gain first; at most
 /// [`MAX_HEATMAP_FEATURES`] are kept). Warm cells are joint-only leakage.
@@ -510,10 +514,13 @@ pub fn pair_heatmap(title: &str, pairs: &[&PairResult]) -> String {
         .iter()
         .flat_map(|p| {
             let (a, b) = (p.features[0].as_str(), p.features[1].as_str());
-            [((a, b), p.gain), ((b, a), p.gain)]
+            // Only a gain whose interval lies above 0 is shown as joint leakage.
+            let gain = if p.gain_is_resolved() { p.gain } else { 0.0 };
+            [((a, b), gain), ((b, a), gain)]
         })
         .collect();
-    let limit = gains.values().fold(0.01_f64, |m, g| m.max(g.abs()));
+    // A fixed scale, so that small gains never look warm by stretching.
+    let limit = HEATMAP_GAIN_SCALE;
     let n = names.len().max(1) as f64;
     let label = names
         .iter()

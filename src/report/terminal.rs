@@ -34,6 +34,7 @@ impl Style {
             Self::Tone(Tone::Alarm) => "\x1b[1;38;5;203m",
             Self::Tone(Tone::Caution) => "\x1b[38;5;179m",
             Self::Tone(Tone::Calm) => "\x1b[38;5;108m",
+            Self::Tone(Tone::Muted) => "\x1b[38;5;245m",
         }
     }
 

@@ -19,6 +19,13 @@ use thiserror::Error;
 /// Significance level used when the caller has no reason to pick another.
 pub const DEFAULT_ALPHA: f64 = 0.05;
 
+/// Smallest AUC change `diff` calls significant, however small its p-value:
+/// 0.02 AUC, half the 0.04 gap between adjacent verdict-relevant values a
+/// reviewer reads off a two-decimal report, and well above the run-to-run
+/// spread of a million-row scan (common practice: a material change must be
+/// both statistically and practically significant).
+pub const DEFAULT_MIN_EFFECT: f64 = 0.02;
+
 /// Why a report file could not be read; each message is one line naming the file.
 #[derive(Debug, Error)]
 pub enum ReviewError {
@@ -138,6 +145,8 @@ fn missing_field_name(reason: &str) -> Option<String> {
 pub struct ReportDiff {
     /// Two-sided significance level of the AUC tests.
     pub alpha: f64,
+    /// Smallest absolute AUC change that counts as significant.
+    pub min_effect: f64,
     /// Dataset, tool and settings fields side by side.
     pub context: Vec<ContextItem>,
     /// Reasons the comparison is weaker than it looks (settings differ, same data...).
@@ -225,8 +234,12 @@ pub struct AucChange {
     pub z: Option<f64>,
     /// Two-sided p-value of `z` under the standard normal.
     pub p_value: Option<f64>,
-    /// `p_value < alpha`.
+    /// `p_value < alpha` and |change| ≥ the minimum effect size, both AUCs
+    /// from the same surrogate.
     pub significant: bool,
+    /// The surrogate of the old and of the new AUC; when they differ the
+    /// change is shown but not tested (`z`, `p_value` null).
+    pub surrogates: [Option<String>; 2],
 }
 
 impl AucChange {
@@ -236,11 +249,15 @@ impl AucChange {
     /// Radiology 148:839–843) statistic with the correlation term set to 0, as
     /// for separate samples. When both reports come from the same rows the AUCs
     /// are positively correlated and this test is conservative.
+    /// Only AUCs of the same surrogate are tested against each other, and a
+    /// change below `min_effect` is never significant.
     #[must_use]
-    pub fn test(name: &str, old: AucPoint, new: AucPoint, alpha: f64) -> Self {
+    pub fn test(name: &str, old: AucPoint, new: AucPoint, alpha: f64, min_effect: f64) -> Self {
         let change = old.auc.zip(new.auc).map(|(a, b)| b - a);
+        let like_for_like = old.surrogate == new.surrogate;
         let z = change
             .zip(combined_se(old.se, new.se))
+            .filter(|_| like_for_like)
             .map(|(d, se)| d / se);
         let p_value = z.map(two_sided_p_value);
         Self {
@@ -250,7 +267,9 @@ impl AucChange {
             change,
             z,
             p_value,
-            significant: p_value.is_some_and(|p| p < alpha),
+            significant: p_value.is_some_and(|p| p < alpha)
+                && change.is_some_and(|d| d.abs() >= min_effect),
+            surrogates: [old.surrogate, new.surrogate],
         }
     }
 
@@ -261,11 +280,12 @@ impl AucChange {
     }
 }
 
-/// An AUC and its DeLong standard error as read from a report.
-#[derive(Debug, Clone, Copy, PartialEq, Default)]
+/// An AUC, its standard error and the surrogate behind it, as read from a report.
+#[derive(Debug, Clone, PartialEq, Default)]
 pub struct AucPoint {
     pub auc: Option<f64>,
     pub se: Option<f64>,
+    pub surrogate: Option<String>,
 }
 
 impl AucPoint {
@@ -273,6 +293,7 @@ impl AucPoint {
         Self {
             auc: feature.auc,
             se: feature.auc_se,
+            surrogate: feature.surrogate.clone(),
         }
     }
 
@@ -280,6 +301,7 @@ impl AucPoint {
         result.whole_set.as_ref().map(|w| Self {
             auc: Some(w.auc),
             se: Some(w.auc_se),
+            surrogate: Some(w.surrogate.clone()),
         })
     }
 }
@@ -291,9 +313,11 @@ fn combined_se(old: Option<f64>, new: Option<f64>) -> Option<f64> {
 
 /// Compares two reports: per protected attribute, features added and removed,
 /// flag changes and AUC changes tested at `alpha` (two-sided), plus the
-/// dataset and settings context. Pass [`DEFAULT_ALPHA`] unless there is a reason.
+/// dataset and settings context. Pass [`DEFAULT_ALPHA`] and
+/// [`DEFAULT_MIN_EFFECT`] unless there is a reason.
 #[must_use]
-pub fn compare(old: &Report, new: &Report, alpha: f64) -> ReportDiff {
+pub fn compare(old: &Report, new: &Report, alpha: f64, min_effect: f64) -> ReportDiff {
+    let tests = Tests { alpha, min_effect };
     let context = context_items(old, new);
     let warnings = comparison_warnings(old, new, &context);
     let old_names: Vec<&str> = old.results.iter().map(|r| r.protected.as_str()).collect();
@@ -302,17 +326,25 @@ pub fn compare(old: &Report, new: &Report, alpha: f64) -> ReportDiff {
         .iter()
         .chain(old_names.iter().filter(|n| !new_names.contains(n)))
         .map(|name| {
-            ProtectedDiff::between(name, find_result(old, name), find_result(new, name), alpha)
+            ProtectedDiff::between(name, find_result(old, name), find_result(new, name), tests)
         })
         .collect();
     ReportDiff {
         alpha,
+        min_effect,
         context,
         warnings,
         protected_added: missing_from(&new_names, &old_names),
         protected_removed: missing_from(&old_names, &new_names),
         protected,
     }
+}
+
+/// Significance level and minimum effect size of the AUC change tests.
+#[derive(Debug, Clone, Copy)]
+struct Tests {
+    alpha: f64,
+    min_effect: f64,
 }
 
 fn find_result<'a>(report: &'a Report, protected: &str) -> Option<&'a ProtectedResult> {
@@ -333,7 +365,7 @@ impl ProtectedDiff {
         protected: &str,
         old: Option<&ProtectedResult>,
         new: Option<&ProtectedResult>,
-        alpha: f64,
+        tests: Tests,
     ) -> Self {
         let status = match (old, new) {
             (Some(_), None) => AttributeStatus::Removed,
@@ -357,14 +389,15 @@ impl ProtectedDiff {
                     name,
                     AucPoint::of_feature(o),
                     AucPoint::of_feature(n),
-                    alpha,
+                    tests.alpha,
+                    tests.min_effect,
                 ))
             })
             .collect();
         let whole_set = old
             .and_then(AucPoint::of_whole_set)
             .zip(new.and_then(AucPoint::of_whole_set))
-            .map(|(o, n)| AucChange::test("whole set", o, n, alpha));
+            .map(|(o, n)| AucChange::test("whole set", o, n, tests.alpha, tests.min_effect));
         Self {
             protected: protected.to_string(),
             status,
@@ -479,9 +512,15 @@ fn context_items(old: &Report, new: &Report) -> Vec<ContextItem> {
             true,
         ),
         item(
-            "settings.thresholds.review_ami",
-            ot.review_ami.to_string(),
-            nt.review_ami.to_string(),
+            "settings.verdict_surrogate",
+            os.verdict_surrogate.clone(),
+            ns.verdict_surrogate.clone(),
+            true,
+        ),
+        item(
+            "settings.interval_method",
+            os.interval_method.clone(),
+            ns.interval_method.clone(),
             true,
         ),
         item("settings.pairs", os.pairs.clone(), ns.pairs.clone(), true),

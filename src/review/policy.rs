@@ -5,7 +5,7 @@
 
 use super::gate::gate_failures;
 use crate::report::{Acceptance, PolicyOutcome, Report, Thresholds};
-use crate::scan::{flag_for, pair_flag};
+use crate::scan::flag_for;
 use serde::Deserialize;
 use sha2::{Digest, Sha256};
 use std::ops::Range;
@@ -39,8 +39,6 @@ pub struct PolicyThresholds {
     pub proxy_auc_low: Option<f64>,
     /// Overrides [`Thresholds::review_auc_low`].
     pub review_auc_low: Option<f64>,
-    /// Overrides [`Thresholds::review_ami`].
-    pub review_ami: Option<f64>,
     /// Fail when the whole-set AUC interval's lower bound reaches this.
     pub whole_set_auc_low: Option<f64>,
 }
@@ -49,7 +47,7 @@ impl PolicyThresholds {
     /// Whether any flag threshold is overridden (so flags must be recomputed).
     #[must_use]
     pub fn overrides_flags(&self) -> bool {
-        self.proxy_auc_low.is_some() || self.review_auc_low.is_some() || self.review_ami.is_some()
+        self.proxy_auc_low.is_some() || self.review_auc_low.is_some()
     }
 
     /// `base` with this policy's overrides applied.
@@ -58,7 +56,6 @@ impl PolicyThresholds {
         Thresholds {
             proxy_auc_low: self.proxy_auc_low.unwrap_or(base.proxy_auc_low),
             review_auc_low: self.review_auc_low.unwrap_or(base.review_auc_low),
-            review_ami: self.review_ami.unwrap_or(base.review_ami),
             whole_set_auc_low: self.whole_set_auc_low.unwrap_or(base.whole_set_auc_low),
         }
     }
@@ -119,7 +116,6 @@ struct RawPolicy {
 struct RawThresholds {
     proxy_auc_low: Option<Spanned<f64>>,
     review_auc_low: Option<Spanned<f64>>,
-    review_ami: Option<Spanned<f64>>,
     whole_set_auc_low: Option<Spanned<f64>>,
 }
 
@@ -196,16 +192,22 @@ impl Policy {
 
     fn reflag(&self, report: &mut Report) {
         let thresholds = report.settings.thresholds;
-        for result in &mut report.results {
+        // Attributes whose flags are withheld (smallest class below the
+        // minimum class size) stay unresolved whatever the thresholds.
+        for result in report
+            .results
+            .iter_mut()
+            .filter(|r| r.flags_withheld.is_none())
+        {
             for feature in &mut result.features {
-                feature.flag = flag_for(feature.auc_low, feature.ami, &thresholds);
+                feature.flag = flag_for(feature.auc_low, feature.auc_high, &thresholds);
             }
             for pair in &mut result.pairs {
-                pair.flag = pair_flag(pair.auc_low, &thresholds);
+                pair.flag = flag_for(pair.auc_low, pair.auc_high, &thresholds);
             }
         }
         report.notes.push(format!(
-            "flags recomputed with the thresholds of policy {} (pairs on their AUC interval alone)",
+            "flags recomputed with the thresholds of policy {}",
             self.file
         ));
     }
@@ -307,7 +309,6 @@ impl Locator<'_> {
         Ok(PolicyThresholds {
             proxy_auc_low: self.unit_interval("proxy_auc_low", raw.proxy_auc_low)?,
             review_auc_low: self.unit_interval("review_auc_low", raw.review_auc_low)?,
-            review_ami: self.unit_interval("review_ami", raw.review_ami)?,
             whole_set_auc_low: self.unit_interval("whole_set_auc_low", raw.whole_set_auc_low)?,
         })
     }

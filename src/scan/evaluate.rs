@@ -6,7 +6,7 @@ use crate::report::AucInterval;
 use crate::stats::auc::{self, AucComparison, AucEstimate};
 use crate::stats::ber::balanced_error_rate;
 use crate::stats::heldout::heldout_information;
-use crate::surrogate::Scores;
+use crate::surrogate::{FoldedTarget, Scores};
 
 /// The protected attribute being rebuilt, with its folds.
 pub struct Target<'a> {
@@ -33,6 +33,16 @@ impl<'a> Target<'a> {
 
     pub fn codes(&self) -> &[u32] {
         &self.attribute.codes
+    }
+
+    /// The class codes with their folds, as the surrogates take them.
+    pub fn folded(&self) -> FoldedTarget<'_> {
+        FoldedTarget {
+            classes: &self.attribute.codes,
+            n_classes: self.n_classes(),
+            folds: &self.folds,
+            n_folds: self.n_folds,
+        }
     }
 }
 
@@ -75,6 +85,35 @@ pub fn evaluate(scores: &Scores, target: &Target<'_>) -> Option<Evaluation> {
         ber: balanced_error_rate(&scores.proba, k, target.codes()),
         heldout_info_nats: heldout_information(&scores.proba, k, target.codes()),
     })
+}
+
+/// Cross-validated AUC: the mean over folds of the held-out fold's AUC
+/// (binary: positive class; multi-class: macro one-vs-rest), the CV-AUC of
+/// LeDell, Petersen & van der Laan (2015, EJS 9, §2); folds lacking a class
+/// are left out. The same quantity the frequency surrogate's count table
+/// gives (see [`crate::surrogate::CountTable::auc`]), so every surrogate's
+/// AUC in a report means the same thing.
+pub fn fold_mean_auc(scores: &Scores, target: &Target<'_>) -> Option<f64> {
+    let k = target.n_classes();
+    let class = target.attribute.positive as usize;
+    let per_fold: Vec<f64> = (0..target.n_folds as u8)
+        .filter_map(|fold| {
+            let (_, rows) = crate::data::folds::split(&target.folds, fold);
+            if target.attribute.is_binary() {
+                let s: Vec<f64> = rows.iter().map(|&r| scores.proba[r * k + class]).collect();
+                let p: Vec<bool> = rows.iter().map(|&r| target.positive[r]).collect();
+                auc::auc_from_scores(&s, &p)
+            } else {
+                let proba: Vec<f64> = rows
+                    .iter()
+                    .flat_map(|&r| scores.proba[r * k..(r + 1) * k].iter().copied())
+                    .collect();
+                let labels: Vec<u32> = rows.iter().map(|&r| target.codes()[r]).collect();
+                crate::stats::macro_ovr(&proba, k, &labels).map(|e| e.auc)
+            }
+        })
+        .collect();
+    (!per_fold.is_empty()).then(|| per_fold.iter().sum::<f64>() / per_fold.len() as f64)
 }
 
 /// DeLong's test of two correlated AUCs on the same rows.

@@ -6,10 +6,11 @@ use super::composition::composition;
 use super::evaluate::Target;
 use super::pairs::evaluate_pairs;
 use super::singles::scan_singles;
+use super::verdict::interval_text;
 use super::{Progress, ScanOptions};
 use crate::data::EncodedTable;
 use crate::report::explanation::{DOMINATED_SHARE, Explanation};
-use crate::report::{FeatureResult, LevelComposition, PairResult};
+use crate::report::{FeatureResult, Flag, LevelComposition, PairResult};
 use crate::stats::contingency::Contingency;
 
 /// Partners listed for the feature.
@@ -46,14 +47,7 @@ pub fn explain(
         .filter(|&j| j != index)
         .map(|j| (index.min(j), index.max(j)))
         .collect();
-    let mut partners = evaluate_pairs(
-        &table.features,
-        &pairs,
-        &singles,
-        &target,
-        options,
-        progress,
-    );
+    let mut partners = evaluate_pairs(&table.features, &pairs, &target, options, progress);
     partners.truncate(PARTNERS);
     progress.finish();
     let column = &table.features[index];
@@ -83,7 +77,7 @@ pub fn explain(
         dominated,
         levels_with_shares,
         levels.len(),
-        partners.first(),
+        partners.iter().find(|p| p.gain_is_resolved()),
     );
     Ok(Explanation {
         protected: protected.name.clone(),
@@ -108,14 +102,15 @@ fn paragraph(
     levels: usize,
     partner: Option<&PairResult>,
 ) -> String {
-    let mut text = match (feature.auc, feature.auc_low, feature.auc_high) {
-        (Some(auc), Some(low), Some(high)) => format!(
-            "Knowing `{}` alone recovers `{protected}` with AUC {auc:.2} ({low:.2}–{high:.2}, 95% DeLong interval, out-of-fold {} surrogate); it is flagged {}.",
+    let mut text = match feature.auc {
+        Some(auc) => format!(
+            "Knowing `{}` alone recovers `{protected}` with AUC {} (95% interval including the fitting variance, out-of-fold {} surrogate); {}.",
             feature.name,
-            feature.surrogate.as_deref().unwrap_or("best"),
-            feature.flag.as_str()
+            interval_text(auc, feature.auc_low, feature.auc_high),
+            feature.surrogate.as_deref().unwrap_or("frequency"),
+            verdict_clause(feature.flag)
         ),
-        _ => format!("No surrogate could be fitted on `{}`.", feature.name),
+        None => format!("No surrogate could be fitted on `{}`.", feature.name),
     };
     if with_shares > 0 {
         text.push_str(&format!(
@@ -129,16 +124,31 @@ fn paragraph(
             feature.mi_nats, feature.ami
         ));
     }
-    if let Some(p) = partner.filter(|p| p.gain > 0.01) {
+    if let Some(p) = partner {
         let other = if p.features[0] == feature.name {
             &p.features[1]
         } else {
             &p.features[0]
         };
         text.push_str(&format!(
-            " Together with `{other}` it reaches AUC {:.2} ({:+.2} over the better of the two alone).",
-            p.auc, p.gain
+            " Together with `{other}` it reaches AUC {}, a gain of {:+.2} ({:+.2} to {:+.2}) over the better of the two alone.",
+            interval_text(p.auc, p.auc_low, p.auc_high),
+            p.gain,
+            p.gain_low.unwrap_or(f64::NAN),
+            p.gain_high.unwrap_or(f64::NAN)
         ));
     }
     text
+}
+
+/// The verdict in words, consistent with the interval.
+fn verdict_clause(flag: Flag) -> &'static str {
+    match flag {
+        Flag::Proxy => "its lower bound reaches the proxy line, so it is flagged proxy",
+        Flag::Review => "its lower bound reaches the review line, so it is flagged review",
+        Flag::Clear => "its whole interval lies below the review line, so it is clear",
+        Flag::Unresolved => {
+            "its interval does not settle which side of the review line it lies on, so it is unresolved with this data"
+        }
+    }
 }

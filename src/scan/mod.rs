@@ -13,10 +13,11 @@ mod verdict;
 mod whole;
 
 pub use progress::{Progress, Silent};
-pub use verdict::{flag_for, pair_flag};
+pub use verdict::flag_for;
 
 use crate::data::{EncodedTable, ProtectedAttribute};
-use crate::report::{LevelCount, ProtectedResult, Thresholds};
+use crate::report::{Flag, LevelCount, ProtectedResult, Thresholds};
+use crate::stats::fitting::{DEFAULT_INFLATION, REPLICATES};
 use crate::stats::information::entropy;
 use evaluate::Target;
 
@@ -63,7 +64,17 @@ pub struct ScanOptions {
     /// Rows beyond which the ablation and removal plan run on a seeded
     /// stratified sample of this many rows.
     pub ablation_rows: usize,
+    /// Smallest protected class (rows) for which AUC flags and gates are
+    /// issued; see [`DEFAULT_MIN_CLASS`].
+    pub min_class: u64,
 }
+
+/// Default minimum class size: the smallest class at which an AUC of 0.80
+/// (a clear proxy, 0.10 beyond the proxy line) clears the review line 0.60
+/// with 80 % power, by [`crate::stats::fitting::min_class_size`] with the
+/// default fitting-variance factor. Below it the screen is mostly noise:
+/// intervals rest on a handful of rows and most real proxies would be missed.
+pub const DEFAULT_MIN_CLASS: u64 = 28;
 
 impl Default for ScanOptions {
     fn default() -> Self {
@@ -79,8 +90,22 @@ impl Default for ScanOptions {
             whole_set: true,
             ablation: true,
             ablation_rows: 200_000,
+            min_class: DEFAULT_MIN_CLASS,
         }
     }
+}
+
+/// The verdict surrogate's cross-fitted AUC of one column for `attribute`
+/// with its fitting-inclusive interval, exactly as the single-feature scan
+/// reports it.
+#[must_use]
+pub fn fitted_auc(
+    column: &crate::data::EncodedColumn,
+    attribute: &ProtectedAttribute,
+    options: &ScanOptions,
+) -> crate::stats::fitting::FittedAuc {
+    let target = Target::new(attribute, options.folds, options.seed);
+    singles::fitted_interval(column, &target, options.seed)
 }
 
 /// Scans every protected attribute of `table`.
@@ -106,8 +131,8 @@ fn scan_attribute(
     progress: &dyn Progress,
 ) -> ProtectedResult {
     let target = Target::new(attribute, options.folds, options.seed);
-    let features = singles::scan_singles(&table.features, &target, options, progress);
-    let pairs = pairs::scan_pairs(&table.features, &features, &target, options, progress);
+    let mut features = singles::scan_singles(&table.features, &target, options, progress);
+    let mut pairs = pairs::scan_pairs(&table.features, &features, &target, options, progress);
     let whole_set = options
         .whole_set
         .then(|| {
@@ -115,13 +140,20 @@ fn scan_attribute(
             whole::scan_whole_set(&inputs, &target, options, progress)
         })
         .flatten();
-    let headline = verdict::headline(
-        &attribute.name,
-        whole_set.as_ref(),
-        &features,
+    let smallest = attribute.counts.iter().copied().min().unwrap_or(0);
+    let flags_withheld = verdict::withheld_reason(smallest, options.min_class);
+    if flags_withheld.is_some() {
+        features.iter_mut().for_each(|f| f.flag = Flag::Unresolved);
+        pairs.iter_mut().for_each(|p| p.flag = Flag::Unresolved);
+    }
+    let inflation = fitting_inflation(&features);
+    let positive = attribute.is_binary().then_some(attribute.positive as usize);
+    let power = verdict::power(
+        verdict::power_classes(&attribute.counts, positive),
+        inflation.unwrap_or(DEFAULT_INFLATION),
         &options.thresholds,
     );
-    ProtectedResult {
+    let mut result = ProtectedResult {
         protected: attribute.name.clone(),
         kind: if attribute.is_binary() {
             "binary"
@@ -148,11 +180,33 @@ fn scan_attribute(
                 .map(|&c| c as u64)
                 .collect::<Vec<_>>(),
         ),
-        headline,
-        features,
-        pairs,
+        headline: String::new(),
+        detectable_auc: power.detectable_auc,
+        fitting_inflation: inflation,
+        power_statement: power.statement,
+        flags_withheld,
+        features: Vec::new(),
+        pairs: Vec::new(),
         whole_set,
-    }
+    };
+    result.headline = verdict::headline(&result, &features, &pairs, &options.thresholds);
+    result.features = features;
+    result.pairs = pairs;
+    result
+}
+
+/// The measured fitting-variance factor: the median over features of the
+/// fitting-inclusive standard error over the DeLong one (`None` without a
+/// feature that has both).
+fn fitting_inflation(features: &[crate::report::FeatureResult]) -> Option<f64> {
+    let mut ratios: Vec<f64> = features
+        .iter()
+        .filter_map(|f| Some(f.auc_se? / f.auc_delong_se?))
+        .filter(|r| r.is_finite() && *r > 0.0)
+        .collect();
+    ratios.sort_by(f64::total_cmp);
+    let n = ratios.len();
+    (n > 0).then(|| (ratios[(n - 1) / 2] + ratios[n / 2]) / 2.0)
 }
 
 /// Assembles the full report for a scanned table.
@@ -225,6 +279,15 @@ pub fn build_report(
             pairs: options.pairs.as_str().to_string(),
             target_auc: options.target_auc,
             command,
+            min_class: options.min_class,
+            interval_method: format!(
+                "Poisson bootstrap of the whole cross-fit over the frequency surrogate's \
+                 (value, fold, class) count table, {REPLICATES} replicates; 95% normal interval \
+                 around the estimate with the bootstrap standard error (fitting variance included)"
+            ),
+            verdict_surrogate: "frequency surrogate for every column kind, fixed in advance \
+                (no best-of-several selection); logistic and tree AUCs are information only"
+                .to_string(),
         },
         results,
         skipped_columns: table

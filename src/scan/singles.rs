@@ -1,15 +1,16 @@
 //! Single-feature scan: information measures and every surrogate's AUC.
 
 use super::composition::composition;
-use super::evaluate::{Evaluation, Target, evaluate, roc};
+use super::evaluate::{Evaluation, Target, evaluate, fold_mean_auc, roc};
 use super::verdict::flag_for;
 use super::{Progress, ScanOptions};
 use crate::data::EncodedColumn;
 use crate::report::{FeatureResult, Flag};
 use crate::stats::contingency::Contingency;
+use crate::stats::fitting::{FittedAuc, REPLICATES, bootstrap_counts, from_replicates, stream_of};
 use crate::stats::information::summarize;
 use crate::surrogate::{
-    FrequencySurrogate, LogisticSurrogate, Surrogate, TreeSurrogate, cross_fit,
+    CountTable, FrequencySurrogate, LogisticSurrogate, Surrogate, TreeSurrogate, cross_fit,
 };
 use rayon::prelude::*;
 use std::collections::BTreeMap;
@@ -54,6 +55,13 @@ pub fn scan_singles(
         .collect()
 }
 
+/// The surrogate every verdict rests on, fixed in advance for every column
+/// kind: the smoothed frequency model over the encoded codes (levels, or
+/// quantile bins of a numeric) is the Bayes-optimal score of the encoded
+/// feature, and fixing it means no best-of-three selection inflates the AUC.
+/// The other surrogates' AUCs are kept as information.
+pub const VERDICT_SURROGATE: &str = "frequency";
+
 /// The single-feature surrogates, in report order.
 fn single_surrogates() -> Vec<Box<dyn Surrogate>> {
     vec![
@@ -61,6 +69,29 @@ fn single_surrogates() -> Vec<Box<dyn Surrogate>> {
         Box::new(LogisticSurrogate::default()),
         Box::new(TreeSurrogate::default()),
     ]
+}
+
+/// The frequency surrogate's cross-validated AUC with its fitting-inclusive
+/// interval: a Poisson bootstrap over its (value, fold, class) count table,
+/// with the fixed-model variance (see [`crate::stats::fitting`]).
+pub(super) fn fitted_interval(column: &EncodedColumn, target: &Target<'_>, seed: u64) -> FittedAuc {
+    let table = CountTable::single(
+        &column.codes,
+        column.n_levels as usize,
+        target.folded(),
+        FrequencySurrogate::default().smoothing,
+    );
+    let positive = target.attribute.positive as usize;
+    let point = table.auc(&table.counts, positive).unwrap_or(f64::NAN);
+    let replicates = bootstrap_counts(
+        &table.counts,
+        REPLICATES,
+        seed,
+        stream_of(&column.name),
+        |counts| table.auc(counts, positive).map(|auc| [auc]),
+    );
+    let aucs: Vec<f64> = replicates.iter().map(|[auc]| *auc).collect();
+    from_replicates(point, &aucs, table.fixed_model_variance(positive))
 }
 
 fn scan_feature(
@@ -76,11 +107,8 @@ fn scan_feature(
     );
     let info = summarize(&table);
     let columns = [column];
-    let mut evaluations: Vec<(&'static str, Evaluation)> = Vec::new();
-    let mut heldout = None;
-    // Scores of the best surrogate so far (ties go to the later one, as `max_by`
-    // picks the last maximum); only its ROC curve is ever reported.
-    let mut best_scores: Option<(f64, crate::surrogate::Scores)> = None;
+    let mut surrogates = BTreeMap::new();
+    let mut verdict: Option<(Evaluation, crate::surrogate::Scores)> = None;
     for model in single_surrogates() {
         let Ok(scores) = cross_fit(
             model.as_ref(),
@@ -93,21 +121,23 @@ fn scan_feature(
             continue;
         };
         if let Some(evaluation) = evaluate(&scores, target) {
-            if model.name() == "frequency" {
-                heldout = Some(evaluation.heldout_info_nats);
+            if let Some(auc) = fold_mean_auc(&scores, target) {
+                surrogates.insert(model.name().to_string(), auc);
             }
-            let auc = evaluation.estimate.auc;
-            if best_scores.as_ref().is_none_or(|(best, _)| auc >= *best) {
-                best_scores = Some((auc, scores));
+            if model.name() == VERDICT_SURROGATE {
+                verdict = Some((evaluation, scores));
             }
-            evaluations.push((model.name(), evaluation));
         }
     }
-    let best = evaluations
-        .iter()
-        .max_by(|a, b| a.1.estimate.auc.total_cmp(&b.1.estimate.auc));
-    let interval = best.map(|(_, e)| e.interval());
-    let flag = flag_for(interval.map(|i| i.auc_low), info.ami, &options.thresholds);
+    let fitted = verdict
+        .as_ref()
+        .map(|_| fitted_interval(column, target, options.seed));
+    let flag = flag_for(
+        fitted.and_then(|f| f.low),
+        fitted.and_then(|f| f.high),
+        &options.thresholds,
+    );
+    let evaluation = verdict.as_ref().map(|(e, _)| e);
     let result = FeatureResult {
         name: column.name.clone(),
         kind: column.kind.as_str().to_string(),
@@ -117,28 +147,22 @@ fn scan_feature(
         mi_mm_nats: info.mi_mm_nats,
         ami: info.ami,
         nmi: info.nmi,
-        heldout_info_nats: heldout,
-        auc: interval.map(|i| i.auc),
-        auc_low: interval.map(|i| i.auc_low),
-        auc_high: interval.map(|i| i.auc_high),
-        auc_se: interval.map(|i| i.auc_se),
-        hand_till: best.and_then(|(_, e)| e.hand_till),
-        ber: best.map(|(_, e)| e.ber),
-        surrogate: best.map(|(name, _)| (*name).to_string()),
-        surrogates: evaluations
-            .iter()
-            .map(|(name, e)| ((*name).to_string(), e.estimate.auc))
-            .collect(),
-        surrogate_intervals: evaluations
-            .iter()
-            .map(|(name, e)| ((*name).to_string(), e.interval()))
-            .collect::<BTreeMap<_, _>>(),
+        heldout_info_nats: evaluation.map(|e| e.heldout_info_nats),
+        auc: fitted.map(|f| f.auc).filter(|a| a.is_finite()),
+        auc_low: fitted.and_then(|f| f.low),
+        auc_high: fitted.and_then(|f| f.high),
+        auc_se: fitted.and_then(|f| f.se),
+        auc_delong_se: evaluation.map(|e| e.estimate.se),
+        hand_till: evaluation.and_then(|e| e.hand_till),
+        ber: evaluation.map(|e| e.ber),
+        surrogate: evaluation.map(|_| VERDICT_SURROGATE.to_string()),
+        surrogates,
         flag,
         accepted: None,
-        composition: (flag != Flag::Clear)
+        composition: matches!(flag, Flag::Proxy | Flag::Review)
             .then(|| composition(column, &table, target, options.min_cell)),
         roc: None,
     };
-    let roc = best_scores.map(|(_, scores)| roc(&scores, target));
+    let roc = verdict.map(|(_, scores)| roc(&scores, target));
     (result, roc)
 }

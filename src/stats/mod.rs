@@ -5,6 +5,7 @@ pub mod auc;
 pub mod ber;
 pub mod bootstrap;
 pub mod contingency;
+pub mod fitting;
 pub mod heldout;
 pub mod information;
 pub mod multiclass;
@@ -13,8 +14,8 @@ pub mod special;
 pub mod tables;
 
 pub use auc::{
-    AucComparison, AucEstimate, auc_from_rating_table, auc_from_scores, compare_independent,
-    delong, delong_compare, delong_rating_table, hanley_mcneil_se, roc_curve,
+    AucComparison, AucEstimate, auc_from_rating_table, auc_from_scores, auc_from_weighted_scores,
+    compare_independent, delong, delong_compare, delong_rating_table, hanley_mcneil_se, roc_curve,
 };
 pub use ber::{balanced_error_rate, ber_at_threshold, min_ber};
 pub use bootstrap::{bca_interval, jackknife_acceleration, percentile_interval};

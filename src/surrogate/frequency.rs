@@ -15,7 +15,7 @@ use crate::data::encode::combine_codes;
 
 /// Pair grids with at most this many cells are indexed directly; larger ones
 /// are numbered over their observed combinations.
-const DENSE_PAIR_CELLS: u64 = 1 << 16;
+pub(super) const DENSE_PAIR_CELLS: u64 = 1 << 16;
 
 /// The frequency surrogate's parameters.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -56,14 +56,14 @@ fn combine_into(left: &[f64], right: &[f64], prior: &[f64], out: &mut [f64]) {
 }
 
 /// Working buffers for one posterior: smoothed left and right shares and the back-off.
-struct Scratch {
+pub(super) struct Scratch {
     left: Vec<f64>,
     right: Vec<f64>,
     back_off: Vec<f64>,
 }
 
 impl Scratch {
-    fn new(k: usize) -> Self {
+    pub(super) fn new(k: usize) -> Self {
         Self {
             left: vec![0.0; k],
             right: vec![0.0; k],
@@ -91,7 +91,7 @@ impl Work {
 /// column's smoothed shares, or for a pair the cell's shares smoothed toward
 /// the naive-Bayes combination of the two singles (the combination itself
 /// when the cell was never seen in training).
-fn posterior(
+pub(super) fn posterior(
     singles: [&[f64]; 2],
     cell: Option<&[f64]>,
     prior: &[f64],

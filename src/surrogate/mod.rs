@@ -5,6 +5,7 @@
 //! so nothing is ever scored on rows it was fitted on.
 
 pub mod boosted;
+pub mod count_table;
 pub mod frequency;
 pub mod logistic;
 #[cfg(test)]
@@ -12,6 +13,7 @@ mod oracles;
 pub mod tree;
 
 pub use boosted::BoostedSurrogate;
+pub use count_table::CountTable;
 pub use frequency::FrequencySurrogate;
 pub use logistic::LogisticSurrogate;
 pub use tree::TreeSurrogate;
