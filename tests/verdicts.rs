@@ -136,16 +136,18 @@ fn table(protected: ProtectedAttribute, features: Vec<EncodedColumn>) -> Encoded
 #[test]
 fn tiny_minorities_raise_no_flag_and_pass_the_gate() {
     // 2 000 rows, 5, 10 or 20 minority rows, 24 pure-noise columns, every
-    // pair scanned and the whole-set attacker run: nothing may be flagged
-    // proxy or review and the gate must pass (scan exit 0), in every seed.
+    // pair scanned: nothing may be flagged proxy or review and the gate must
+    // pass (scan exit 0), in every seed. The gate skips an attribute whose
+    // flags are withheld, whole set included (unit test in scan::verdict),
+    // so the slow whole-set attacker is left out here.
     for minority in [5, 10, 20] {
-        for seed in 0..3 {
+        for seed in 0..2 {
             let mut rng = SplitMix64::new(77 + seed);
             let group = attribute(2_000, minority, &mut rng);
             let features = noise_columns(&group.codes, 24, &mut rng);
             let options = ScanOptions {
                 seed,
-                ablation: false,
+                whole_set: false,
                 pairs: PairMode::All,
                 ..ScanOptions::default()
             };
@@ -263,8 +265,9 @@ fn explain_names_no_partner_on_pure_noise() {
 /// Measurement run, not a check (`cargo test --release --test verdicts --
 /// --ignored --nocapture`): coverage of the fitting-inclusive and of the
 /// DeLong interval on the three coverage designs, and the false-flag rates
-/// on pure noise with 5, 10 and 20 minority rows in 2 000, with the minimum
-/// class size switched off (the intervals alone) and at its default.
+/// on pure noise with 5, 10 and 20 minority rows in 2 000 (features and
+/// pairs; the whole-set attacker is not run), with the minimum class size
+/// switched off (the intervals alone) and at its default.
 #[test]
 #[ignore = "Monte Carlo measurement; prints rates"]
 fn monte_carlo_rates() {
@@ -277,7 +280,7 @@ fn monte_carlo_rates() {
         ("noise, 6 levels", uniform(6), 0.5),
         ("noise, 40 levels", uniform(40), 0.5),
     ];
-    let replicates = 2_000u64;
+    let replicates = 1_000u64;
     for (name, shares, truth) in &designs {
         let (mut fitted, mut delong, mut ratio) = (0, 0, 0.0);
         for seed in 0..replicates {
@@ -317,7 +320,7 @@ fn monte_carlo_rates() {
     for minority in [5, 10, 20] {
         for min_class in [0, telltale::scan::DEFAULT_MIN_CLASS] {
             let (mut sets_flagged, mut gate_failed, mut flags, mut tests) = (0, 0, 0, 0);
-            let seeds = 40u64;
+            let seeds = 20u64;
             for seed in 0..seeds {
                 let mut rng = SplitMix64::new(7_000 + seed);
                 let group = attribute(2_000, minority, &mut rng);

@@ -8,7 +8,7 @@ pub mod html;
 pub mod json;
 pub mod markdown;
 #[cfg(test)]
-mod sample;
+pub(crate) mod sample;
 pub mod svg;
 pub mod terminal;
 

@@ -551,6 +551,13 @@ fn comparison_warnings(old: &Report, new: &Report, context: &[ContextItem]) -> V
 }
 
 impl ReportDiff {
+    fn tests(&self) -> Tests {
+        Tests {
+            alpha: self.alpha,
+            min_effect: self.min_effect,
+        }
+    }
+
     /// One line per reason the change should stop a pipeline: a feature newly
     /// flagged proxy without an active acceptance, or a whole-set AUC that rose significantly.
     #[must_use]
@@ -668,13 +675,13 @@ pub fn render_diff_text(diff: &ReportDiff, colour: bool) -> String {
         list_or_none(&diff.protected_removed)
     );
     for p in &diff.protected {
-        render_protected_text(&mut out, p, diff.alpha, colour);
+        render_protected_text(&mut out, p, diff.tests(), colour);
     }
     render_gate_text(&mut out, &diff.gate_reasons(), colour);
     out
 }
 
-fn render_protected_text(out: &mut String, p: &ProtectedDiff, alpha: f64, colour: bool) {
+fn render_protected_text(out: &mut String, p: &ProtectedDiff, tests: Tests, colour: bool) {
     let heading = format!("\n{} ({:?})", p.protected, p.status).to_lowercase();
     let _ = writeln!(out, "{}", paint(&heading, BOLD, colour));
     let _ = writeln!(out, "  features added: {}", list_or_none(&p.features_added));
@@ -697,7 +704,9 @@ fn render_protected_text(out: &mut String, p: &ProtectedDiff, alpha: f64, colour
     let significant: Vec<&AucChange> = p.auc_changes.iter().filter(|c| c.significant).collect();
     let _ = writeln!(
         out,
-        "  AUC changes significant at {alpha}: {} of {}",
+        "  AUC changes significant at {} and at least {} AUC: {} of {}",
+        tests.alpha,
+        tests.min_effect,
         significant.len(),
         p.auc_changes.len()
     );
@@ -747,7 +756,7 @@ pub fn render_diff_markdown(diff: &ReportDiff) -> String {
         list_or_none(&diff.protected_removed)
     );
     for p in &diff.protected {
-        render_protected_markdown(&mut out, p, diff.alpha);
+        render_protected_markdown(&mut out, p, diff.tests());
     }
     out
 }
@@ -764,7 +773,7 @@ fn render_gate_markdown(out: &mut String, reasons: &[String]) {
     out.push('\n');
 }
 
-fn render_protected_markdown(out: &mut String, p: &ProtectedDiff, alpha: f64) {
+fn render_protected_markdown(out: &mut String, p: &ProtectedDiff, tests: Tests) {
     let status = format!("{:?}", p.status).to_lowercase();
     let _ = writeln!(out, "\n## `{}` ({status})\n", p.protected);
     let _ = writeln!(out, "- Features added: {}", list_or_none(&p.features_added));
@@ -791,7 +800,8 @@ fn render_protected_markdown(out: &mut String, p: &ProtectedDiff, alpha: f64) {
     }
     let _ = writeln!(
         out,
-        "\nAUC changes, two-sided z-test at α = {alpha} (independent samples):\n"
+        "\nAUC changes, two-sided z-test at α = {} (independent samples), same surrogate only; significant needs at least {} AUC of change:\n",
+        tests.alpha, tests.min_effect
     );
     out.push_str("| feature | old AUC | new AUC | change | z | p | significant |\n");
     out.push_str("|---|---|---|---|---|---|---|\n");
