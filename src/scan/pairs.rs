@@ -142,6 +142,7 @@ fn evaluate_pair(
     let replicates = bootstrap_counts(&table.counts, PAIR_REPLICATES, options.seed, stream, aucs);
     let column = |i: usize| replicates.iter().map(|r| r[i]).collect::<Vec<f64>>();
     let fitted = from_replicates(auc, &column(0), table.fixed_model_variance(positive));
+    let fitted = super::singles::or_degenerate(fitted, target);
     // The gain's interval rests on the paired bootstrap alone, which errs on
     // the wide side: a joint effect is only claimed when it is clear.
     let gain_fitted = from_replicates(gain, &column(1), None);

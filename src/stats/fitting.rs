@@ -35,7 +35,7 @@
 //! noise (coverage 0.83–0.87): fold AUCs whose models share training rows
 //! are correlated, which it ignores. The reported variance is the mean of
 //! the two, an empirical calibration, not a theorem: its measured coverage
-//! is 0.95–0.97 for planted signals and 0.95–0.98 for noise, see the README.
+//! is 0.96–0.97 for planted signals and 0.93–0.98 for noise, see the README.
 //! Where the fixed-model variance is not available (more than two classes)
 //! the bootstrap variance is used alone, which errs on the wide side.
 //!
@@ -124,6 +124,45 @@ pub fn from_replicates(
         se: Some(se),
         low: Some((point - Z_975 * se).clamp(0.0, 1.0)),
         high: Some((point + Z_975 * se).clamp(0.0, 1.0)),
+    }
+}
+
+/// The interval when every replicate gives the same AUC (resampling shows
+/// no spread: every score tied, or the classes perfectly separated in every
+/// fold). Perfect separation (AUC 1 or 0): the one-sided exact binomial
+/// bound for n successes in n trials, n the smaller class, α^{1/n} with
+/// α = 0.025 (Clopper & Pearson 1934), as the far end. Otherwise the Hanley
+/// & McNeil (1982, eq. 2) standard error at the estimate. `None` bounds
+/// when a class is empty.
+#[must_use]
+pub fn degenerate_interval(point: f64, n_pos: u64, n_neg: u64) -> FittedAuc {
+    let n = n_pos.min(n_neg);
+    if n == 0 || !point.is_finite() {
+        return FittedAuc {
+            auc: point,
+            se: None,
+            low: None,
+            high: None,
+        };
+    }
+    let far = 0.025_f64.powf(1.0 / n as f64);
+    let (low, high, se) = if point >= 1.0 {
+        (far, 1.0, None)
+    } else if point <= 0.0 {
+        (0.0, 1.0 - far, None)
+    } else {
+        let se = hanley_mcneil_se(point, n_pos as usize, n_neg as usize);
+        (
+            (point - Z_975 * se).max(0.0),
+            (point + Z_975 * se).min(1.0),
+            Some(se),
+        )
+    };
+    FittedAuc {
+        auc: point,
+        se,
+        low: Some(low),
+        high: Some(high),
     }
 }
 
@@ -243,6 +282,19 @@ mod tests {
         let mut mostly_lost = vec![f64::NAN; 190];
         mostly_lost.extend([0.4, 0.6].repeat(5));
         assert_eq!(from_replicates(0.5, &mostly_lost, None).se, None);
+    }
+
+    #[test]
+    fn degenerate_intervals_use_exact_and_hanley_mcneil_bounds() {
+        // Clopper & Pearson (1934): 20 of 20 gives a one-sided 97.5 % lower
+        // bound 0.025^(1/20) = exp(ln 0.025 / 20) = 0.831567.
+        let perfect = degenerate_interval(1.0, 20, 20);
+        assert!((perfect.low.unwrap() - 0.831_567).abs() < 5e-7);
+        assert_eq!(perfect.high, Some(1.0));
+        let tied = degenerate_interval(0.5, 100, 100);
+        let se = hanley_mcneil_se(0.5, 100, 100);
+        assert!((tied.high.unwrap() - (0.5 + Z_975 * se)).abs() < 1e-12);
+        assert_eq!(degenerate_interval(1.0, 0, 5).low, None);
     }
 
     #[test]
