@@ -264,9 +264,10 @@ fn exit_status_and_policy_outcome_agree() {
 fn a_perfect_proxy_fails_the_gate_with_status_one() {
     let dir = scratch("gate");
     let file = write(&dir, "d.csv", small_csv().as_bytes());
-    // 20 rows per class: below the default minimum class size, so it is lowered.
-    let quick = [&["-p", "group", "--min-class", "20"][..], &QUICK].concat();
-    let (out, json) = scan_json(&file, &quick);
+    // Each class has 20 rows, below the default minimum class size (28),
+    // which would withhold every flag; the minimum is lowered to the data.
+    let args = [&["-p", "group", "--min-class", "20"][..], &QUICK].concat();
+    let (out, json) = scan_json(&file, &args);
     assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
     assert!(
         stderr(&out).contains("group/area: proxy"),

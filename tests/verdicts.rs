@@ -134,39 +134,51 @@ fn table(protected: ProtectedAttribute, features: Vec<EncodedColumn>) -> Encoded
     }
 }
 
+/// The report of a scan of 2 000 rows with `minority` rows of class 1 and
+/// 24 noise columns, the data drawn from `data_seed`.
+fn noise_report(
+    minority: usize,
+    data_seed: u64,
+    options: &ScanOptions,
+) -> telltale::report::Report {
+    let mut rng = SplitMix64::new(data_seed);
+    let group = attribute(2_000, minority, &mut rng);
+    let features = noise_columns(&group.codes, 24, &mut rng);
+    let info = telltale::report::DatasetInfo {
+        source: "noise".to_string(),
+        rows: 2_000,
+        rows_used: 2_000,
+        columns: 25,
+        sha256: None,
+        rows_dropped_missing_protected: 0,
+        sample: None,
+    };
+    telltale::scan::build_report(
+        &table(group, features),
+        info,
+        options,
+        32,
+        String::new(),
+        &Silent,
+    )
+}
+
 #[test]
 fn tiny_minorities_raise_no_flag_and_pass_the_gate() {
     // 2 000 rows, 5, 10 or 20 minority rows, 24 pure-noise columns, every
-    // pair scanned and the whole-set attacker run: nothing may be flagged
-    // proxy or review and the gate must pass (scan exit 0), in every seed.
+    // pair scanned: nothing may be flagged proxy or review and the gate must
+    // pass (scan exit 0), in every seed. The gate skips an attribute whose
+    // flags are withheld, whole set included (unit test in scan::verdict),
+    // so the slow whole-set attacker is left out here.
     for minority in [5, 10, 20] {
-        for seed in 0..3 {
-            let mut rng = SplitMix64::new(77 + seed);
-            let group = attribute(2_000, minority, &mut rng);
-            let features = noise_columns(&group.codes, 24, &mut rng);
+        for seed in 0..2 {
             let options = ScanOptions {
                 seed,
-                ablation: false,
+                whole_set: false,
                 pairs: PairMode::All,
                 ..ScanOptions::default()
             };
-            let data = table(group, features);
-            let report = telltale::scan::build_report(
-                &data,
-                telltale::report::DatasetInfo {
-                    source: "noise".to_string(),
-                    rows: 2_000,
-                    rows_used: 2_000,
-                    columns: 25,
-                    sha256: None,
-                    rows_dropped_missing_protected: 0,
-                    sample: None,
-                },
-                &options,
-                32,
-                String::new(),
-                &Silent,
-            );
+            let report = noise_report(minority, 77 + seed, &options);
             let result = &report.results[0];
             let raised = |flag: Flag| matches!(flag, Flag::Proxy | Flag::Review);
             assert!(
@@ -264,8 +276,10 @@ fn explain_names_no_partner_on_pure_noise() {
 /// Measurement run, not a check (`cargo test --release --test verdicts --
 /// --ignored --nocapture`): coverage of the fitting-inclusive and of the
 /// DeLong interval on the three coverage designs, and the false-flag rates
-/// on pure noise with 5, 10 and 20 minority rows in 2 000, with the minimum
-/// class size switched off (the intervals alone) and at its default.
+/// on pure noise with 5, 10 and 20 minority rows in 2 000 (flags of
+/// features and pairs; the gate includes the whole-set attacker, without
+/// ablation), with the minimum class size switched off (the intervals
+/// alone) and at its default.
 #[test]
 #[ignore = "Monte Carlo measurement; prints rates"]
 fn monte_carlo_rates() {
@@ -278,7 +292,7 @@ fn monte_carlo_rates() {
         ("noise, 6 levels", uniform(6), 0.5),
         ("noise, 40 levels", uniform(40), 0.5),
     ];
-    let replicates = 2_000u64;
+    let replicates = 1_000u64;
     for (name, shares, truth) in &designs {
         let (mut fitted, mut delong, mut ratio) = (0, 0, 0.0);
         for seed in 0..replicates {
@@ -318,29 +332,15 @@ fn monte_carlo_rates() {
     for minority in [5, 10, 20] {
         for min_class in [0, telltale::scan::DEFAULT_MIN_CLASS] {
             let (mut sets_flagged, mut gate_failed, mut flags, mut tests) = (0, 0, 0, 0);
-            let seeds = 40u64;
+            let seeds = 20u64;
             for seed in 0..seeds {
-                let mut rng = SplitMix64::new(7_000 + seed);
-                let group = attribute(2_000, minority, &mut rng);
-                let features = noise_columns(&group.codes, 24, &mut rng);
                 let options = ScanOptions {
                     seed,
                     ablation: false,
                     min_class,
                     ..ScanOptions::default()
                 };
-                let data = table(group, features);
-                let info = telltale::report::DatasetInfo {
-                    source: "noise".into(),
-                    rows: 2_000,
-                    rows_used: 2_000,
-                    columns: 25,
-                    sha256: None,
-                    rows_dropped_missing_protected: 0,
-                    sample: None,
-                };
-                let report =
-                    telltale::scan::build_report(&data, info, &options, 32, String::new(), &Silent);
+                let report = noise_report(minority, 7_000 + seed, &options);
                 let r = &report.results[0];
                 let raised = |flag: Flag| matches!(flag, Flag::Proxy | Flag::Review);
                 let n = r.features.iter().filter(|f| raised(f.flag)).count()

@@ -19,7 +19,7 @@ use std::process::ExitCode;
     about = "Screens a dataset for features that stand in for a protected attribute",
     long_about = "Trains cross-validated surrogate models that try to rebuild each protected \
 attribute from every feature, every pair and the whole feature set, and reports the leakage \
-(mutual information, AUC with DeLong intervals, balanced error rate). A statistical screen, \
+(mutual information, AUC with intervals that include the fitting variance, balanced error rate). A statistical screen, \
 not a legal determination."
 )]
 struct Cli {

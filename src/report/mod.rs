@@ -11,7 +11,7 @@ pub mod layout;
 pub mod markdown;
 pub mod page;
 #[cfg(test)]
-mod sample;
+pub(crate) mod sample;
 pub mod svg;
 pub mod terminal;
 

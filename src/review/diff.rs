@@ -557,6 +557,13 @@ fn comparison_warnings(old: &Report, new: &Report, context: &[ContextItem]) -> V
 }
 
 impl ReportDiff {
+    fn tests(&self) -> Tests {
+        Tests {
+            alpha: self.alpha,
+            min_effect: self.min_effect,
+        }
+    }
+
     /// One line per reason the change should stop a pipeline: a feature newly
     /// flagged proxy without an active acceptance, or a whole-set AUC that rose significantly.
     #[must_use]
@@ -656,7 +663,7 @@ impl ReportDiff {
             text: w.clone(),
         }));
         let mut sections = vec![Section::untitled(gate_blocks), self.context_section()];
-        sections.extend(self.protected.iter().map(|p| p.section(self.alpha)));
+        sections.extend(self.protected.iter().map(|p| p.section(self.tests())));
         Page {
             title: "Report comparison".to_owned(),
             subtitle: None,
@@ -709,7 +716,7 @@ impl ReportDiff {
 }
 
 impl ProtectedDiff {
-    fn section(&self, alpha: f64) -> Section<'static> {
+    fn section(&self, tests: Tests) -> Section<'static> {
         let status = format!("{:?}", self.status).to_lowercase();
         let mut blocks = vec![Block::List(vec![
             format!("Features added: {}", names_or_none(&self.features_added)),
@@ -726,8 +733,10 @@ impl ProtectedDiff {
             blocks.push(Block::paragraph(
                 Role::Body,
                 format!(
-                    "AUC changes, two-sided z-test at α = {alpha} (independent samples): \
-                     {significant} of {} significant.",
+                    "AUC changes, two-sided z-test at α = {} (independent samples), counted \
+                     only when at least {} AUC: {significant} of {} significant.",
+                    tests.alpha,
+                    tests.min_effect,
                     self.auc_changes.len()
                 ),
             ));

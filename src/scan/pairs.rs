@@ -6,7 +6,7 @@ use super::verdict::flag_for;
 use super::{PairMode, Progress, ScanOptions};
 use crate::data::{EncodedColumn, FeatureKind};
 use crate::report::{FeatureResult, PairResult};
-use crate::stats::fitting::{REPLICATES, bootstrap_counts, from_replicates, stream_of};
+use crate::stats::fitting::{PAIR_REPLICATES, bootstrap_counts, from_replicates, stream_of};
 use crate::surrogate::FrequencySurrogate;
 use crate::surrogate::count_table::{CountTable, Marginal};
 use rayon::prelude::*;
@@ -139,9 +139,10 @@ fn evaluate_pair(
     };
     let [auc, gain] = aucs(&table.counts)?;
     let stream = stream_of(&left.name) ^ stream_of(&right.name).rotate_left(1);
-    let replicates = bootstrap_counts(&table.counts, REPLICATES, options.seed, stream, aucs);
+    let replicates = bootstrap_counts(&table.counts, PAIR_REPLICATES, options.seed, stream, aucs);
     let column = |i: usize| replicates.iter().map(|r| r[i]).collect::<Vec<f64>>();
     let fitted = from_replicates(auc, &column(0), table.fixed_model_variance(positive));
+    let fitted = super::singles::or_degenerate(fitted, target);
     // The gain's interval rests on the paired bootstrap alone, which errs on
     // the wide side: a joint effect is only claimed when it is clear.
     let gain_fitted = from_replicates(gain, &column(1), None);

@@ -7,7 +7,9 @@ use super::{Progress, ScanOptions};
 use crate::data::EncodedColumn;
 use crate::report::{FeatureResult, Flag};
 use crate::stats::contingency::Contingency;
-use crate::stats::fitting::{FittedAuc, REPLICATES, bootstrap_counts, from_replicates, stream_of};
+use crate::stats::fitting::{
+    FittedAuc, REPLICATES, bootstrap_counts, degenerate_interval, from_replicates, stream_of,
+};
 use crate::stats::information::summarize;
 use crate::surrogate::{
     CountTable, FrequencySurrogate, LogisticSurrogate, Surrogate, TreeSurrogate, cross_fit,
@@ -91,7 +93,20 @@ pub(super) fn fitted_interval(column: &EncodedColumn, target: &Target<'_>, seed:
         |counts| table.auc(counts, positive).map(|auc| [auc]),
     );
     let aucs: Vec<f64> = replicates.iter().map(|[auc]| *auc).collect();
-    from_replicates(point, &aucs, table.fixed_model_variance(positive))
+    let fitted = from_replicates(point, &aucs, table.fixed_model_variance(positive));
+    or_degenerate(fitted, target)
+}
+
+/// `fitted`, or when resampling showed no spread the degenerate interval
+/// ([`degenerate_interval`]) at the attribute's class sizes.
+pub(super) fn or_degenerate(fitted: FittedAuc, target: &Target<'_>) -> FittedAuc {
+    if fitted.low.is_some() {
+        return fitted;
+    }
+    let attribute = target.attribute;
+    let positive = attribute.is_binary().then_some(attribute.positive as usize);
+    let (small, other) = super::verdict::power_classes(&attribute.counts, positive);
+    degenerate_interval(fitted.auc, small, other)
 }
 
 fn scan_feature(

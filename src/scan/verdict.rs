@@ -271,6 +271,20 @@ mod tests {
     }
 
     #[test]
+    fn withheld_attributes_never_fail_the_gate() {
+        let mut flagged = result(whole_set(0.9, 0.88, 0.92));
+        flagged
+            .features
+            .push(crate::report::sample::sample_report().results[0].features[0].clone());
+        flagged.features[0].flag = Flag::Proxy;
+        let mut report = crate::report::sample::sample_report();
+        report.results = vec![flagged];
+        assert_eq!(crate::review::gate::gate_failures(&report).len(), 2);
+        report.results[0].flags_withheld = withheld_reason(5, 28);
+        assert!(crate::review::gate::gate_failures(&report).is_empty());
+    }
+
+    #[test]
     fn withheld_only_below_the_minimum_class() {
         assert!(withheld_reason(27, 28).is_some());
         assert!(withheld_reason(28, 28).is_none());

@@ -209,28 +209,20 @@ pub fn auc_from_rating_table(negatives: &[u64], positives: &[u64]) -> Option<f64
     Some(twice_wins as f64 / (2 * u128::from(n_neg) * u128::from(n_pos)) as f64)
 }
 
-/// Mann–Whitney AUC of weighted scores: `negatives[i]` and `positives[i]`
-/// are the (possibly fractional) weights of each class at `scores[i]`. The
-/// scores are sorted and tied ones merged into one rating category, then
+/// Mann–Whitney AUC of weighted scores: each item is (score, negative
+/// weight, positive weight), weights possibly fractional. The items are
+/// sorted in place and tied scores merged into one rating category, then
 /// Hanley & McNeil (1982, eq. 1) as in [`auc_from_rating_table`]. Serves
 /// count tables and row-weighted (bootstrap) scores alike. `None` when a
-/// class has no weight or the lengths differ.
+/// class has no weight.
 #[must_use]
-pub fn auc_from_weighted_scores(
-    scores: &[f64],
-    negatives: &[f64],
-    positives: &[f64],
-) -> Option<f64> {
-    if scores.len() != negatives.len() || scores.len() != positives.len() {
-        return None;
-    }
-    let mut order: Vec<u32> = (0..scores.len() as u32).collect();
-    order.sort_unstable_by(|&a, &b| scores[a as usize].total_cmp(&scores[b as usize]));
+pub fn auc_from_weighted_scores(items: &mut [(f64, f64, f64)]) -> Option<f64> {
+    items.sort_unstable_by(|a, b| a.0.total_cmp(&b.0));
     let (mut negatives_below, mut twice_wins) = (0.0, 0.0);
     let (mut n_neg, mut n_pos) = (0.0, 0.0);
-    for group in order.chunk_by(|&a, &b| scores[a as usize] == scores[b as usize]) {
-        let neg: f64 = group.iter().map(|&i| negatives[i as usize]).sum();
-        let pos: f64 = group.iter().map(|&i| positives[i as usize]).sum();
+    for group in items.chunk_by(|a, b| a.0 == b.0) {
+        let neg: f64 = group.iter().map(|g| g.1).sum();
+        let pos: f64 = group.iter().map(|g| g.2).sum();
         twice_wins += pos * (2.0 * negatives_below + neg);
         negatives_below += neg;
         n_neg += neg;
@@ -499,13 +491,18 @@ mod tests {
         // Hanley & McNeil (1982) Table I as five weighted scores (one per
         // rating, listed out of order and with one rating split in two):
         // AUC 0.893171 (WORKED-EXAMPLES §1).
-        let scores = [5.0, 1.0, 3.0, 2.0, 4.0, 3.0];
-        let negatives = [2.0, 33.0, 3.0, 6.0, 11.0, 3.0];
-        let positives = [33.0, 3.0, 1.0, 2.0, 11.0, 1.0];
-        let auc = auc_from_weighted_scores(&scores, &negatives, &positives).unwrap();
+        let mut items = [
+            (5.0, 2.0, 33.0),
+            (1.0, 33.0, 3.0),
+            (3.0, 3.0, 1.0),
+            (2.0, 6.0, 2.0),
+            (4.0, 11.0, 11.0),
+            (3.0, 3.0, 1.0),
+        ];
+        let auc = auc_from_weighted_scores(&mut items).unwrap();
         let table = auc_from_rating_table(&HM_NORMAL, &HM_ABNORMAL).unwrap();
         assert!((auc - table).abs() < 1e-12 && (auc - 0.893_171).abs() < 5e-7);
-        assert_eq!(auc_from_weighted_scores(&[1.0], &[2.0], &[0.0]), None);
+        assert_eq!(auc_from_weighted_scores(&mut [(1.0, 2.0, 0.0)]), None);
     }
 
     #[test]

@@ -40,6 +40,18 @@ pub struct Marginal {
 }
 
 impl Marginal {
+    /// Orders the column's entries by fold, keeping the pair entries' map.
+    fn order_by_fold(&mut self) {
+        let order = self.table.order_by_fold();
+        let mut new_index = vec![0u32; order.len()];
+        for (new, &old) in order.iter().enumerate() {
+            new_index[old] = new as u32;
+        }
+        self.entry_of
+            .iter_mut()
+            .for_each(|e| *e = new_index[*e as usize]);
+    }
+
     /// The column's counts from a pair table's `counts`.
     #[must_use]
     pub fn counts(&self, pair_counts: &[f64]) -> Vec<f64> {
@@ -143,6 +155,7 @@ impl CountTable {
                 table.push_cell(&block);
             }
         }
+        table.order_by_fold();
         table
     }
 
@@ -197,6 +210,7 @@ impl CountTable {
             }
         }
         table.pair = Some((kept, levels));
+        table.order_by_fold();
         table
     }
 
@@ -230,7 +244,9 @@ impl CountTable {
                 entry_at[codes_of[cell as usize][side] as usize * f + usize::from(fold)]
             })
             .collect();
-        Some(Marginal { table, entry_of })
+        let mut marginal = Marginal { table, entry_of };
+        marginal.order_by_fold();
+        Some(marginal)
     }
 
     fn empty_like(other: &Self) -> Self {
@@ -266,23 +282,19 @@ impl CountTable {
             (0..k).collect()
         };
         let mut per_fold = Vec::with_capacity(self.n_folds);
-        let (mut scores, mut pos, mut neg) = (Vec::new(), Vec::new(), Vec::new());
-        for fold in 0..self.n_folds as u8 {
+        let mut items = Vec::new();
+        for range in self.fold_ranges() {
+            let fold_counts = counts[range.start * k..range.end * k].chunks_exact(k);
+            let fold_posteriors = posteriors[range.start * k..range.end * k].chunks_exact(k);
             let mut total = 0.0;
             let mut defined = true;
             for &class in &classes {
-                scores.clear();
-                pos.clear();
-                neg.clear();
-                let in_fold = self.entries.iter().zip(counts.chunks_exact(k));
-                for ((&(_, f), c), p) in in_fold.zip(posteriors.chunks_exact(k)) {
-                    if f == fold {
-                        scores.push(p[class]);
-                        pos.push(c[class]);
-                        neg.push(c.iter().sum::<f64>() - c[class]);
-                    }
-                }
-                match auc_from_weighted_scores(&scores, &neg, &pos) {
+                items.clear();
+                let pairs = fold_counts.clone().zip(fold_posteriors.clone());
+                items.extend(
+                    pairs.map(|(c, p)| (p[class], c.iter().sum::<f64>() - c[class], c[class])),
+                );
+                match auc_from_weighted_scores(&mut items) {
                     Some(auc) => total += auc,
                     None => defined = false,
                 }
@@ -292,6 +304,32 @@ impl CountTable {
             }
         }
         (!per_fold.is_empty()).then(|| per_fold.iter().sum::<f64>() / per_fold.len() as f64)
+    }
+
+    /// The entries of each fold (entries are kept ordered by fold).
+    fn fold_ranges(&self) -> Vec<std::ops::Range<usize>> {
+        let mut ranges = Vec::with_capacity(self.n_folds);
+        let mut start = 0;
+        for fold in 0..self.n_folds as u8 {
+            let end = start + self.entries[start..].partition_point(|e| e.1 == fold);
+            ranges.push(start..end);
+            start = end;
+        }
+        ranges
+    }
+
+    /// Orders the entries (and their counts) by fold, then cell; returns
+    /// the old position of each entry in the new order.
+    fn order_by_fold(&mut self) -> Vec<usize> {
+        let k = self.k;
+        let mut order: Vec<usize> = (0..self.entries.len()).collect();
+        order.sort_by_key(|&e| (self.entries[e].1, self.entries[e].0));
+        self.entries = order.iter().map(|&e| self.entries[e]).collect();
+        self.counts = order
+            .iter()
+            .flat_map(|&e| self.counts[e * k..(e + 1) * k].iter().copied())
+            .collect();
+        order
     }
 
     /// Variance of the fold-mean AUC of [`Self::auc`] with each fold's
