@@ -217,15 +217,14 @@ fn whole_number_amount_keeps_its_order() {
 /// likelihood ratio is the optimal score, and AUC = P(s1 > s0) + ½ P(s1 = s0)
 /// (Mann–Whitney with ties; Hanley & McNeil 1982).
 fn bayes_auc(p0: &[f64], p1: &[f64]) -> f64 {
-    let ratio = |l: usize| p1[l] / p0[l];
+    let ratios: Vec<f64> = p1.iter().zip(p0).map(|(a, b)| a / b).collect();
     let mut auc = 0.0;
-    for l in 0..p0.len() {
-        for m in 0..p0.len() {
-            let (a, b) = (ratio(l), ratio(m));
-            if a > b {
-                auc += p1[l] * p0[m];
-            } else if a == b {
-                auc += 0.5 * p1[l] * p0[m];
+    for (positive, ratio_positive) in p1.iter().zip(&ratios) {
+        for (negative, ratio_negative) in p0.iter().zip(&ratios) {
+            if ratio_positive > ratio_negative {
+                auc += positive * negative;
+            } else if ratio_positive == ratio_negative {
+                auc += 0.5 * positive * negative;
             }
         }
     }

@@ -235,12 +235,8 @@ pub fn text_note(kind: FeatureKind, distinct: Distinct, not_numbers: usize) -> O
             distinct.present
         ));
     }
-    (kind == FeatureKind::IdentifierLike).then(|| {
-        format!(
-            "text, {:.0}% of values distinct: screened alone, not in pairs",
-            distinct.percent()
-        )
-    })
+    (kind == FeatureKind::IdentifierLike)
+        .then(|| format!("text, {:.0}% of values distinct", distinct.percent()))
 }
 
 #[cfg(test)]

@@ -12,7 +12,7 @@
 //! learning repository) and the spreadsheet error values are added, and a
 //! blank field (spaces only) is missing like an empty one.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::BTreeMap;
 
 /// The tokens read as missing unless `--na-values` replaces them.
 pub const DEFAULT_TOKENS: &[&str] = &[
@@ -20,6 +20,9 @@ pub const DEFAULT_TOKENS: &[&str] = &[
     "<NA>", "N/A", "NA", "NULL", "NaN", "None", "n/a", "nan", "null", ".", "?", "#DIV/0!",
     "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#NULL!",
 ];
+
+/// Fields read as missing, per token.
+pub type TokenCounts = BTreeMap<String, usize>;
 
 /// How a blank field (spaces only) is named in token counts.
 pub const BLANK_LABEL: &str = "<blank>";
@@ -64,25 +67,26 @@ impl MissingTokens {
     pub fn apply<'a>(
         &self,
         fields: impl Iterator<Item = Option<&'a str>>,
-    ) -> (Vec<Option<&'a str>>, BTreeMap<String, usize>) {
-        let index: HashMap<&str, usize> = self
-            .tokens
-            .iter()
-            .enumerate()
-            .map(|(i, t)| (t.as_str(), i))
-            .collect();
-        let longest = self.tokens.iter().map(String::len).max().unwrap_or(0);
+    ) -> (Vec<Option<&'a str>>, TokenCounts) {
+        // Tokens by length: most fields match no token's length and need one
+        // comparison of lengths, the rest a few byte comparisons.
+        let mut by_length: Vec<Vec<(usize, &str)>> = Vec::new();
+        for (i, token) in self.tokens.iter().enumerate() {
+            if by_length.len() <= token.len() {
+                by_length.resize(token.len() + 1, Vec::new());
+            }
+            by_length[token.len()].push((i, token));
+        }
         let mut hits = vec![0usize; self.tokens.len()];
         let kept = fields
             .map(|field| {
                 let text = field?;
                 let trimmed = text.trim();
-                // Most fields are longer than any token and need no lookup.
-                let token = (trimmed.len() <= longest)
-                    .then(|| index.get(trimmed))
-                    .flatten();
+                let token = by_length
+                    .get(trimmed.len())
+                    .and_then(|bucket| bucket.iter().find(|(_, t)| *t == trimmed));
                 match token {
-                    Some(&i) => {
+                    Some(&(i, _)) => {
                         hits[i] += 1;
                         None
                     }

@@ -27,9 +27,10 @@ pub enum FeatureKind {
     Boolean,
     /// Text levels; one code per level.
     Categorical,
-    /// Few distinct integers (e.g. a rating 1–6); one code per value.
+    /// Whole numbers with few enough distinct values (a rating, a branch
+    /// number): one code per value, raw values kept for their order.
     IntegerCoded,
-    /// Nearly every value distinct (a reference number); one code per value.
+    /// Text with nearly every value distinct (a reference number); one code per value.
     IdentifierLike,
 }
 

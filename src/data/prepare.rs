@@ -5,7 +5,7 @@ use super::kinds::{
     Distinct, KindRule, NumericProfile, collapsed_bins_note, numeric_kind, numeric_note,
     parse_number, parse_numbers, parse_numbers_lenient, text_kind, text_note,
 };
-use super::missing::MissingTokens;
+use super::missing::{MissingTokens, TokenCounts};
 use super::sample::stratified_sample;
 use super::{
     ColumnReading, EncodedColumn, EncodedTable, FeatureKind, ProtectedAttribute, SkippedColumn,
@@ -213,7 +213,7 @@ fn values_of<'a>(
     path: &Path,
     column: &'a Column,
     missing: &MissingTokens,
-) -> Result<(Values<'a>, BTreeMap<String, usize>), InputError> {
+) -> Result<(Values<'a>, TokenCounts), InputError> {
     let bad = |reason: String| InputError::BadColumn {
         path: path.to_path_buf(),
         column: column.name().to_string(),
@@ -406,7 +406,7 @@ fn encode_named(
     let mut reading = ColumnReading {
         name: name.to_string(),
         kind: None,
-        missing_tokens: BTreeMap::new(),
+        missing_tokens: TokenCounts::new(),
         note: None,
     };
     let values = frame
@@ -584,7 +584,7 @@ fn protected_labels(
     name: &str,
     bands: Option<&Vec<f64>>,
     missing: &MissingTokens,
-) -> Result<(Vec<Option<String>>, BTreeMap<String, usize>), InputError> {
+) -> Result<(Vec<Option<String>>, TokenCounts), InputError> {
     let column = frame.column(name).map_err(|e| InputError::BadColumn {
         path: path.to_path_buf(),
         column: name.to_string(),
