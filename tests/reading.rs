@@ -6,6 +6,7 @@ use serde_json::Value;
 use std::fs;
 use std::path::PathBuf;
 use std::process::{Command, Output};
+use telltale::data::demo::draw;
 use telltale::rng::SplitMix64;
 
 fn telltale(args: &[&str]) -> Output {
@@ -229,19 +230,6 @@ fn bayes_auc(p0: &[f64], p1: &[f64]) -> f64 {
         }
     }
     auc
-}
-
-/// Draws a level from a pmf by its cumulative sum.
-fn draw(rng: &mut SplitMix64, pmf: &[f64]) -> usize {
-    let u = rng.next_f64();
-    let mut sum = 0.0;
-    for (level, p) in pmf.iter().enumerate() {
-        sum += p;
-        if u < sum {
-            return level;
-        }
-    }
-    pmf.len() - 1
 }
 
 #[test]
