@@ -1,35 +1,13 @@
 //! Whole-command behaviour of the `telltale` binary: bad input, outputs,
 //! exit status, and the end-to-end pipeline on open reference data.
 
+mod common;
+
+use common::{scratch, stderr, stdout, telltale, write};
 use serde_json::Value;
 use std::fs;
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn telltale(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_telltale"))
-        .args(args)
-        .output()
-        .expect("run telltale")
-}
-
-/// A fresh scratch folder for one test.
-fn scratch(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("telltale-test-{}-{name}", std::process::id()));
-    let _ = fs::remove_dir_all(&dir);
-    fs::create_dir_all(&dir).expect("scratch dir");
-    dir
-}
-
-fn write(dir: &Path, name: &str, bytes: &[u8]) -> String {
-    let path = dir.join(name);
-    fs::write(&path, bytes).expect("write fixture");
-    path.display().to_string()
-}
-
-fn stderr(output: &Output) -> String {
-    String::from_utf8_lossy(&output.stderr).to_string()
-}
+use std::path::Path;
+use std::process::Output;
 
 /// Asserts exit status 2 and a single error line containing every `needle`.
 fn assert_input_error(output: &Output, needles: &[&str]) {
@@ -244,13 +222,55 @@ fn report_folder_is_never_overwritten_without_force() {
     );
 }
 
+/// The exit status and the report's policy outcome come from one gate: with a
+/// policy that accepts the proxy and sets no whole-set limit, the whole set
+/// still fails at the scan's default limit, in the report as in the status.
+#[test]
+fn exit_status_and_policy_outcome_agree() {
+    let dir = scratch("one-gate");
+    let mut data = String::from("group,area\n");
+    for i in 0..400 {
+        let (group, area) = if i % 2 == 0 {
+            ("a", "north")
+        } else {
+            ("b", "south")
+        };
+        data.push_str(&format!("{group},{area}\n"));
+    }
+    let file = write(&dir, "d.csv", data.as_bytes());
+    let policy = write(
+        &dir,
+        "policy.toml",
+        b"[[accept]]\nfeature = \"area\"\nreason = \"branch staffing\"\nreviewer = \"T. Vell\"\nexpires = \"2999-12-31\"\n",
+    );
+    let (out, json) = scan_json(
+        &file,
+        &[
+            "-p", "group", "--pairs", "none", "--quiet", "--policy", &policy,
+        ],
+    );
+    let failing = json["policy"]["failing"]
+        .as_array()
+        .expect("policy outcome");
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    assert!(
+        failing.len() == 1 && failing[0].as_str().unwrap().contains("whole set"),
+        "{failing:?}"
+    );
+    assert!(stderr(&out).contains("group/whole set"), "{}", stderr(&out));
+}
+
 #[test]
 fn a_perfect_proxy_fails_the_gate_with_status_one() {
     let dir = scratch("gate");
     let file = write(&dir, "d.csv", small_csv().as_bytes());
     let (out, json) = scan_json(&file, &[&["-p", "group"][..], &QUICK].concat());
     assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
-    assert!(stderr(&out).contains("`area` is a proxy"));
+    assert!(
+        stderr(&out).contains("group/area: proxy"),
+        "{}",
+        stderr(&out)
+    );
     assert_eq!(json["results"][0]["features"][0]["flag"], "proxy");
     assert_eq!(json["schema_version"], 1);
     assert!(
@@ -296,7 +316,7 @@ fn large_data_ablation_runs_on_a_stated_sample() {
     assert!(json["notes"].to_string().contains("--ablation-rows"));
     let file = demo_fixture();
     let too_small = telltale(&["scan", &file, "-p", "community", "--ablation-rows", "10"]);
-    assert_input_error(&too_small, &["--ablation-rows", "at least"]);
+    assert_input_error(&too_small, &["ablation rows", "at least"]);
 }
 
 #[test]
@@ -312,11 +332,133 @@ fn piped_output_has_no_progress_bars() {
         "none",
         "--no-whole-set",
     ]);
+    // The scan must have run to its end (the perfect proxy `area` fails the
+    // gate with status 1) for the absence of progress output to mean anything.
     let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(1), "{text}");
+    assert!(stdout(&out).contains("Features ranked by AUC"));
     assert!(
-        !text.contains('\r') && !text.contains('['),
+        !text.contains('\r') && !text.contains('[') && !text.contains('\x1b'),
         "progress leaked: {text}"
     );
+}
+
+/// 400 rows in groups `a` and `b`; `area` follows the group except for 5% of
+/// rows, and its level `islet` holds only the first four rows.
+fn rare_level_csv() -> String {
+    let mut text = String::from("group,area,noise\n");
+    for i in 0..400 {
+        let group = if i % 2 == 0 { "a" } else { "b" };
+        let area = if i < 4 {
+            "islet"
+        } else if (i % 2 == 0) != (i % 20 == 3) {
+            "north"
+        } else {
+            "south"
+        };
+        text.push_str(&format!("{group},{area},{}\n", (i * 7) % 11));
+    }
+    text
+}
+
+/// Asserts that `line` shows no number but the suppression placeholder
+/// `<min_cell` (as plain text, Markdown or HTML).
+fn assert_only_placeholders(line: &str, min_cell: u64, what: &str) {
+    let mut rest = line.to_string();
+    for placeholder in [
+        format!("&lt;{min_cell}"),
+        format!("\\<{min_cell}"),
+        format!("<{min_cell}"),
+    ] {
+        rest = rest.replace(&placeholder, "");
+    }
+    assert!(
+        !rest.chars().any(|c| c.is_ascii_digit()),
+        "{what}: a count of a rare level shows: {line}"
+    );
+}
+
+/// Small-cell suppression end to end: the minimum cell (10, the default;
+/// common practice for aggregate releases) is applied to a level that is
+/// rare in the data, and no output format shows its count or shares.
+#[test]
+fn rare_levels_are_suppressed_in_every_format() {
+    let min_cell = 10;
+    let data = rare_level_csv();
+    let rare_rows = data.lines().filter(|l| l.contains(",islet,")).count();
+    assert!(rare_rows > 0 && rare_rows < min_cell, "{rare_rows}");
+    let dir = scratch("rare");
+    let file = write(&dir, "d.csv", data.as_bytes());
+    let folder = dir.join("report").display().to_string();
+    let scan = ["scan", &file, "-p", "group", "--pairs", "none", "--quiet"];
+    let out = telltale(&[&scan[..], &["--report", &folder]].concat());
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+
+    let json: Value =
+        serde_json::from_str(&fs::read_to_string(dir.join("report/report.json")).unwrap()).unwrap();
+    let area = json["results"][0]["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["name"] == "area")
+        .unwrap();
+    assert_eq!(area["flag"], "proxy", "{area}");
+    let levels = area["composition"].as_array().unwrap();
+    let islet = levels.iter().find(|l| l["label"] == "islet").unwrap();
+    assert_eq!(islet["count"], Value::Null, "{islet}");
+    assert!(
+        islet["shares"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .all(Value::is_null)
+    );
+    let north_rows = data.lines().filter(|l| l.contains(",north,")).count();
+    let north = levels.iter().find(|l| l["label"] == "north").unwrap();
+    assert_eq!(north["count"].as_u64(), Some(north_rows as u64), "{north}");
+
+    let explain = telltale(&[
+        "explain",
+        &file,
+        "-p",
+        "group",
+        "--feature",
+        "area",
+        "--pairs",
+        "none",
+        "--quiet",
+    ]);
+    assert_eq!(explain.status.code(), Some(0), "{}", stderr(&explain));
+    let rendered = [
+        (
+            "report.md",
+            fs::read_to_string(dir.join("report/report.md")).unwrap(),
+        ),
+        (
+            "report.html",
+            fs::read_to_string(dir.join("report/report.html")).unwrap(),
+        ),
+        ("explain", stdout(&explain)),
+    ];
+    for (what, text) in &rendered {
+        // Table rows: HTML `<tr>` elements, otherwise lines.
+        let rows: Vec<&str> = if text.contains("<tr>") {
+            text.split("<tr>")
+                .filter_map(|r| r.split("</tr>").next())
+                .collect()
+        } else {
+            text.lines().collect()
+        };
+        let rare: Vec<&&str> = rows.iter().filter(|r| r.contains("islet")).collect();
+        assert!(!rare.is_empty(), "{what} lists no rare level");
+        for row in rare {
+            assert_only_placeholders(row, min_cell as u64, what);
+        }
+    }
+    let summary = stdout(&telltale(&scan));
+    for line in summary.lines().filter(|l| l.contains("islet")) {
+        assert_only_placeholders(line, min_cell as u64, "terminal summary");
+    }
 }
 
 #[test]
@@ -344,13 +486,9 @@ fn bom_quotes_and_unusual_names_are_read() {
     assert_eq!(names, vec!["quoted, name", "Ärger"]);
 }
 
-fn fixture(name: &str) -> String {
-    format!("{}/fixtures/reference/{name}", env!("CARGO_MANIFEST_DIR"))
-}
-
 fn reference(name: &str) -> Value {
-    serde_json::from_str(&fs::read_to_string(fixture(name)).expect("reference json"))
-        .expect("valid json")
+    let path = common::fixture(&format!("reference/{name}"));
+    serde_json::from_str(&fs::read_to_string(path).expect("reference json")).expect("valid json")
 }
 
 /// End to end on open data: with `--bins 10` the scan's plug-in MI and AMI of
@@ -365,7 +503,7 @@ fn reference(name: &str) -> Value {
 fn hmda_scan_matches_reference_information_values() {
     let reference = reference("reference-hmda-afam.json");
     let (out, json) = scan_json(
-        &fixture("hmda.csv"),
+        &common::fixture("reference/hmda.csv"),
         &[
             &["-p", "afam", "--exclude", "deny", "--bins", "10"][..],
             &QUICK,
@@ -433,7 +571,7 @@ fn cps1985_ethnicity_is_scanned_as_multiclass() {
     // reading at 534 rows) are binned with --numeric so that both sides
     // discretise them alike.
     let (out, json) = scan_json(
-        &fixture("cps1985.csv"),
+        &common::fixture("reference/cps1985.csv"),
         &[
             &[
                 "-p",
@@ -484,10 +622,7 @@ fn cps1985_ethnicity_is_scanned_as_multiclass() {
 }
 
 fn demo_fixture() -> String {
-    format!(
-        "{}/fixtures/demo/lanternfield-4000.csv",
-        env!("CARGO_MANIFEST_DIR")
-    )
+    common::fixture("demo/lanternfield-4000.csv")
 }
 
 const FAST: [&str; 3] = ["--pairs", "none", "--quiet"];
@@ -509,7 +644,11 @@ fn explain_gives_a_paragraph_and_rejects_unknown_features() {
         .concat(),
     );
     assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
-    let text = String::from_utf8_lossy(&out.stdout);
+    // The paragraph is wrapped for the terminal: compare with single spaces.
+    let text = stdout(&out)
+        .split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ");
     assert!(
         text.contains("Knowing `branch_area` alone recovers `community` with AUC"),
         "{text}"
@@ -545,7 +684,7 @@ fn diff_flags_a_new_proxy_and_rejects_non_reports() {
     telltale(&[&base[..], &["--json", &new]].concat());
     let out = telltale(&["diff", &old, &new]);
     assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
-    assert!(String::from_utf8_lossy(&out.stdout).contains("branch_area"));
+    assert!(stdout(&out).contains("branch_area"));
     let same = telltale(&["diff", &new, &new]);
     assert_eq!(same.status.code(), Some(0), "{}", stderr(&same));
     let junk = write(&dir, "junk.json", b"{ not json");
@@ -693,4 +832,26 @@ fn policy_acceptance_and_expiry_drive_the_exit_status() {
         b"[thresholds]\nproxy_auc_low = 0.7\nsurprise = 1\n",
     );
     assert_input_error(&run(&broken), &["broken.toml", "line 3"]);
+}
+
+/// `demo` shares `scan`'s validation: no flag value may panic.
+#[test]
+fn demo_validates_its_flags_as_scan_does() {
+    let dir = scratch("demo-flags");
+    let report = dir.join("out").display().to_string();
+    for (flag, value, needle) in [
+        ("--folds", "0", "folds must be between 2 and 50"),
+        ("--folds", "300", "folds must be between 2 and 50"),
+        ("--bins", "1", "bins must be between 2 and 1024"),
+        ("--proxy-auc", "1.5", "between 0.5 and 1"),
+    ] {
+        let out = telltale(&[
+            "demo", "--rows", "200", "--quiet", "--report", &report, flag, value,
+        ]);
+        assert_input_error(&out, &[needle]);
+    }
+    assert!(
+        !dir.join("out").exists(),
+        "nothing written on a usage error"
+    );
 }

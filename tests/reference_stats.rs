@@ -6,6 +6,9 @@
 //! files state that these deterministic values match a reimplementation to
 //! 1e-9, which is the tolerance used throughout.
 
+mod common;
+
+use common::Csv;
 use serde_json::Value;
 use std::collections::BTreeSet;
 use telltale::data::FeatureKind;
@@ -20,40 +23,6 @@ const BINS: usize = 10;
 
 /// Numeric columns with at most this many distinct values also get one level per value.
 const INTEGER_CODED_MAX_LEVELS: usize = 10;
-
-/// A CSV read into columns of field text. The reference CSVs contain no
-/// quotes and no empty fields, so splitting each line on commas is exact.
-struct Csv {
-    header: Vec<String>,
-    columns: Vec<Vec<String>>,
-}
-
-impl Csv {
-    fn read(path: &str) -> Self {
-        let text = std::fs::read_to_string(path).unwrap();
-        let mut lines = text.lines();
-        let header: Vec<String> = lines
-            .next()
-            .unwrap()
-            .split(',')
-            .map(str::to_string)
-            .collect();
-        let mut columns = vec![Vec::new(); header.len()];
-        for line in lines.filter(|l| !l.is_empty()) {
-            let fields: Vec<&str> = line.split(',').collect();
-            assert_eq!(fields.len(), header.len(), "ragged line {line}");
-            for (column, field) in columns.iter_mut().zip(fields) {
-                column.push(field.to_string());
-            }
-        }
-        Self { header, columns }
-    }
-
-    fn column(&self, name: &str) -> &[String] {
-        let index = self.header.iter().position(|h| h == name).unwrap();
-        &self.columns[index]
-    }
-}
 
 /// Every field as a finite number, or `None` if any field is not one
 /// (the reference's rule for a numeric column).
@@ -112,10 +81,11 @@ fn assert_information(summary: &InformationSummary, reference: &Value, what: &st
 
 /// Checks every feature of one reference file; returns how many were checked.
 fn check_reference(file: &str) -> usize {
-    let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/fixtures/reference/");
+    let reference_path = common::fixture(&format!("reference/{file}"));
     let reference: Value =
-        serde_json::from_str(&std::fs::read_to_string(format!("{dir}{file}")).unwrap()).unwrap();
-    let csv = Csv::read(&format!("{dir}{}", reference["csv_file"].as_str().unwrap()));
+        serde_json::from_str(&std::fs::read_to_string(reference_path).unwrap()).unwrap();
+    let csv_name = reference["csv_file"].as_str().unwrap();
+    let csv = Csv::read(&common::fixture(&format!("reference/{csv_name}")));
     let protected_fields = csv.column(reference["protected"].as_str().unwrap());
     let (classes, n_classes) = categorical_codes(protected_fields);
     let positive_label = reference["positive_class"].as_str();

@@ -13,6 +13,9 @@
 //! than any difference between a working and a broken surrogate on these data,
 //! larger than solver-level differences.
 
+mod common;
+
+use common::Csv;
 use serde_json::Value;
 use telltale::data::encode::{encode_integer_coded, encode_levels, encode_numeric};
 use telltale::data::{EncodedColumn, FeatureKind};
@@ -28,26 +31,6 @@ struct Case {
     classes: Vec<String>,
     folds: Vec<u8>,
     reference: Value,
-}
-
-/// Reads a fixture CSV. The fixture files have a header, no quoted fields and
-/// no missing values, so splitting on commas is exact for them.
-fn read_csv(path: &str) -> (Vec<String>, Vec<Vec<String>>) {
-    let text = std::fs::read_to_string(path).unwrap();
-    let mut lines = text.lines().filter(|l| !l.is_empty());
-    let header: Vec<String> = lines
-        .next()
-        .unwrap()
-        .split(',')
-        .map(str::to_string)
-        .collect();
-    let mut columns = vec![Vec::new(); header.len()];
-    for line in lines {
-        for (column, field) in columns.iter_mut().zip(line.split(',')) {
-            column.push(field.to_string());
-        }
-    }
-    (header, columns)
 }
 
 /// Numeric when every field parses; ≤ 10 distinct numbers become integer-coded
@@ -75,15 +58,15 @@ fn encode(name: &str, fields: &[String]) -> EncodedColumn {
 
 fn load(csv: &str, reference: &str) -> Case {
     let reference: Value = serde_json::from_str(
-        &std::fs::read_to_string(format!("fixtures/reference/{reference}")).unwrap(),
+        &std::fs::read_to_string(common::fixture(&format!("reference/{reference}"))).unwrap(),
     )
     .unwrap();
-    let (header, columns) = read_csv(&format!("fixtures/reference/{csv}"));
+    let csv = Csv::read(&common::fixture(&format!("reference/{csv}")));
     let protected = reference["protected"].as_str().unwrap();
     let outcome = reference["outcome"].as_str();
     let mut features = Vec::new();
     let mut protected_fields = Vec::new();
-    for (name, fields) in header.iter().zip(&columns) {
+    for (name, fields) in csv.header.iter().zip(&csv.columns) {
         if name == protected {
             protected_fields = fields.clone();
         } else if Some(name.as_str()) != outcome {

@@ -3,6 +3,8 @@
 //! inputs (made-up names and numbers, not real data); the expected values come
 //! from the normal distribution tables and the rules stated beside each check.
 
+mod common;
+
 use std::collections::BTreeMap;
 use std::path::PathBuf;
 use telltale::report::{
@@ -188,25 +190,16 @@ fn diff_lists_added_and_removed_features_attributes_and_flag_changes() {
     assert_eq!(diff.protected[2].features_removed, ["postcode"]);
 }
 
+/// A report on one feature for protected attribute `sex`.
+fn single_feature(feature: FeatureResult, sha256: &str) -> Report {
+    report(vec![protected("sex", vec![feature], None)], sha256)
+}
+
 /// Two reports differing only in one feature's AUC, with SEs 0.03 and 0.04 so
 /// that √(0.03² + 0.04²) = 0.05 exactly and z = change / 0.05.
 fn auc_pair(z: f64) -> (Report, Report) {
-    let old = report(
-        vec![protected(
-            "sex",
-            vec![feature("x", 0.60, 0.03, Flag::Clear)],
-            None,
-        )],
-        "aaaa",
-    );
-    let new = report(
-        vec![protected(
-            "sex",
-            vec![feature("x", 0.60 + z * 0.05, 0.04, Flag::Clear)],
-            None,
-        )],
-        "bbbb",
-    );
+    let old = single_feature(feature("x", 0.60, 0.03, Flag::Clear), "aaaa");
+    let new = single_feature(feature("x", 0.60 + z * 0.05, 0.04, Flag::Clear), "bbbb");
     (old, new)
 }
 
@@ -301,12 +294,40 @@ fn differing_settings_raise_a_warning() {
 fn renderings_name_the_gate_and_the_changes() {
     let diff = compare(&old_report(), &new_report(), ALPHA);
     let plain = render_diff_text(&diff, false);
-    assert!(plain.contains("gate: FAILED") && plain.contains("age: clear → proxy"));
+    assert!(plain.contains("Gate: FAILED."), "{plain}");
+    let age_row: Vec<&str> = plain
+        .lines()
+        .find(|l| l.trim_start().starts_with("age "))
+        .unwrap()
+        .split_whitespace()
+        .collect();
+    assert_eq!(age_row, ["age", "clear", "proxy", "no"], "{plain}");
     assert!(!plain.contains('\x1b'));
-    assert!(render_diff_text(&diff, true).contains("\x1b[31m"));
+    let coloured = render_diff_text(&diff, true);
+    assert!(coloured.contains("\x1b[1;38;5;203mage"), "{coloured}");
     let markdown = render_diff_markdown(&diff);
     assert!(markdown.contains("**Gate: FAILED.**"));
     assert!(markdown.contains("| age | clear | proxy | no |"));
+}
+
+#[test]
+fn diff_markdown_escapes_names_in_tables() {
+    // GFM splits table rows at unescaped `|` (GitHub Flavored Markdown spec
+    // 0.29, §4.10 "Tables"), so a name holding one must be escaped to keep
+    // the row's column count.
+    let old = single_feature(feature("a|b", 0.55, 0.01, Flag::Clear), "same");
+    let new = single_feature(feature("a|b", 0.80, 0.01, Flag::Proxy), "same");
+    let markdown = render_diff_markdown(&compare(&old, &new, ALPHA));
+    let rows: Vec<&str> = markdown
+        .lines()
+        .filter(|l| l.starts_with("| a\\|b |"))
+        .collect();
+    assert_eq!(rows.len(), 2, "{markdown}");
+    for row in rows {
+        let cells = row.matches('|').count() - row.matches("\\|").count() - 1;
+        let header = if row.contains("proxy") { 4 } else { 7 };
+        assert_eq!(cells, header, "{row}");
+    }
 }
 
 const POLICY: &str = r#"# review policy
@@ -460,9 +481,11 @@ fn acceptance_of_an_unknown_feature_is_noted() {
 }
 
 fn temp_file(name: &str, contents: &str) -> PathBuf {
-    let path = std::env::temp_dir().join(format!("telltale-review-{}-{name}", std::process::id()));
-    std::fs::write(&path, contents).unwrap();
-    path
+    PathBuf::from(common::write(
+        &common::scratch(&format!("review-{name}")),
+        name,
+        contents.as_bytes(),
+    ))
 }
 
 #[test]

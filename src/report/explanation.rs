@@ -1,8 +1,10 @@
-//! The evidence on one feature (`telltale explain`) and its text rendering.
+//! The evidence on one feature (`telltale explain`) and its page.
 
+use super::format;
+use super::layout::{CAUTION_LABEL, composition_table, interval_cell, pair_row};
+use super::page::{Block, Cell, Column, KeyValues, Page, Role, Row, Section, Table};
 use super::{FeatureResult, LevelComposition, PairResult};
 use serde::{Deserialize, Serialize};
-use std::fmt::Write;
 
 /// Group share from which a level counts as dominated by one group.
 pub const DOMINATED_SHARE: f64 = 0.9;
@@ -26,76 +28,112 @@ pub struct Explanation {
     pub caution: String,
 }
 
-fn share(value: Option<f64>, min_cell: u64) -> String {
-    value.map_or_else(|| format!("<{min_cell}"), |s| format!("{:.1}%", 100.0 * s))
-}
-
-/// Plain text for the terminal or a ticket.
-#[must_use]
-pub fn render_text(e: &Explanation) -> String {
-    let mut out = String::new();
-    let f = &e.feature;
-    let _ = writeln!(
-        out,
-        "`{}` and protected attribute `{}`\n",
-        f.name, e.protected
-    );
-    let _ = writeln!(out, "{}\n", e.paragraph);
-    let _ = writeln!(
-        out,
-        "kind {}, {} levels, {:.1}% missing",
-        f.kind,
-        f.levels,
-        100.0 * f.missing_fraction
-    );
-    let _ = writeln!(
-        out,
-        "mutual information {:.4} nats (Miller–Madow {:.4}), adjusted MI {:.4}, normalised MI {:.4}, held-out information {}",
-        f.mi_nats,
-        f.mi_mm_nats,
-        f.ami,
-        f.nmi,
-        f.heldout_info_nats
-            .map_or("n/a".to_string(), |v| format!("{v:.4} nats"))
-    );
-    let _ = writeln!(out, "\nsurrogate      AUC    95% interval");
-    for (name, i) in &f.surrogate_intervals {
-        let _ = writeln!(
-            out,
-            "{name:<12} {:.3}   {:.3}–{:.3}",
-            i.auc, i.auc_low, i.auc_high
-        );
-    }
-    if !e.partners.is_empty() {
-        let _ = writeln!(out, "\nbest partners   pair AUC   gain");
-        for p in &e.partners {
-            let other = if p.features[0] == f.name {
-                &p.features[1]
-            } else {
-                &p.features[0]
-            };
-            let _ = writeln!(out, "{other:<16} {:.3}   {:+.3}", p.auc, p.gain);
+impl Explanation {
+    /// The explanation as a page: the paragraph, the feature's measures,
+    /// its surrogates, its best partners and its level table.
+    #[must_use]
+    pub fn page(&self) -> Page<'static> {
+        let f = &self.feature;
+        let mut sections = vec![
+            Section::untitled(vec![Block::paragraph(Role::Body, &self.paragraph)]),
+            Section::new("Measures", vec![measures(f)]),
+            Section::new("Surrogates", vec![Block::Table(surrogates(f))]),
+        ];
+        if !self.partners.is_empty() {
+            sections.push(Section::new(
+                "Best partners",
+                vec![Block::Table(self.partners_table())],
+            ));
+        }
+        let class_labels: Vec<&str> = self.protected_levels.iter().map(String::as_str).collect();
+        sections.push(Section::new(
+            format!(
+                "Level table (cells under {} rows suppressed)",
+                self.min_cell
+            ),
+            vec![Block::Table(composition_table(
+                &self.levels,
+                &class_labels,
+                self.min_cell,
+            ))],
+        ));
+        Page {
+            title: format!("`{}` and protected attribute `{}`", f.name, self.protected),
+            subtitle: None,
+            lead: vec![Block::Callout {
+                label: CAUTION_LABEL,
+                text: self.caution.clone(),
+            }],
+            sections,
         }
     }
-    let _ = writeln!(
-        out,
-        "\nlevel table (cells under {} rows suppressed)",
-        e.min_cell
-    );
-    let _ = writeln!(
-        out,
-        "{:<28} {:>8}  {}",
-        "level",
-        "rows",
-        e.protected_levels.join("  ")
-    );
-    for level in &e.levels {
-        let count = level
-            .count
-            .map_or_else(|| format!("<{}", e.min_cell), |c| c.to_string());
-        let shares: Vec<String> = level.shares.iter().map(|s| share(*s, e.min_cell)).collect();
-        let _ = writeln!(out, "{:<28} {count:>8}  {}", level.label, shares.join("  "));
+
+    fn partners_table(&self) -> Table {
+        let name = &self.feature.name;
+        let rows = self
+            .partners
+            .iter()
+            .map(|p| {
+                let other = if &p.features[0] == name {
+                    &p.features[1]
+                } else {
+                    &p.features[0]
+                };
+                pair_row(other.clone(), p)
+            })
+            .collect();
+        Table {
+            name: "partners",
+            columns: vec![
+                Column::text("partner"),
+                Column::numeric("pair AUC [95% CI]"),
+                Column::numeric("gain"),
+                Column::text("flag"),
+            ],
+            rows,
+        }
     }
-    let _ = writeln!(out, "\n{}", e.caution);
-    out
+}
+
+/// Kind, levels, missing share and the information measures of one feature.
+fn measures(f: &FeatureResult) -> Block<'static> {
+    let nats = |v: f64| Cell::plain(format!("{v:.4} nats"));
+    let rows = vec![
+        ("kind", Cell::plain(&f.kind)),
+        ("levels", Cell::plain(f.levels.to_string())),
+        ("missing", Cell::plain(format::percent(f.missing_fraction))),
+        ("mutual information", nats(f.mi_nats)),
+        ("mutual information (Miller–Madow)", nats(f.mi_mm_nats)),
+        ("adjusted MI", Cell::plain(format!("{:.4}", f.ami))),
+        ("normalised MI", Cell::plain(format!("{:.4}", f.nmi))),
+        (
+            "held-out information",
+            Cell::plain(f.heldout_info_nats.map_or_else(
+                || format::NOT_COMPUTED.to_owned(),
+                |v| format!("{v:.4} nats"),
+            )),
+        ),
+    ];
+    Block::KeyValues(KeyValues {
+        labels: Some(["measure", "value"]),
+        rows: rows.into_iter().map(|(k, v)| (k.to_owned(), v)).collect(),
+    })
+}
+
+/// Every surrogate's out-of-fold AUC with its interval.
+fn surrogates(f: &FeatureResult) -> Table {
+    Table {
+        name: "surrogates",
+        columns: vec![Column::text("surrogate"), Column::numeric("AUC [95% CI]")],
+        rows: f
+            .surrogate_intervals
+            .iter()
+            .map(|(name, i)| {
+                Row::from(vec![
+                    Cell::plain(name),
+                    interval_cell(i.auc, i.auc_low, i.auc_high),
+                ])
+            })
+            .collect(),
+    }
 }

@@ -1,8 +1,10 @@
-//! Text pieces shared by the human-readable renderers: number formats,
-//! escaping, the orderings every format presents (features by AUC, pairs by
-//! gain) and the cells of the common tables. Nothing here computes a statistic.
+//! Text pieces the page builders share: number formats, the orderings every
+//! format presents (features by AUC, pairs by gain, drop-one by loss) and
+//! the settings list. Nothing here computes a statistic.
 
-use super::{FeatureResult, LevelComposition, PairResult, ProtectedResult, Report, WholeSet};
+use super::{
+    DropOne, FeatureResult, LevelComposition, PairResult, ProtectedResult, Report, WholeSet,
+};
 use std::cmp::Ordering;
 
 /// Shown where a value was not computed (`null` in the JSON).
@@ -88,45 +90,6 @@ pub fn acceptance_marker(feature: &FeatureResult) -> &'static str {
     }
 }
 
-/// Headers of the ranked feature table.
-pub const FEATURE_HEADERS: [&str; 7] = [
-    "feature",
-    "kind",
-    "AUC [95% CI]",
-    "held-out info (nats)",
-    "AMI",
-    "flag",
-    "policy",
-];
-
-/// One row of the ranked feature table, in [`FEATURE_HEADERS`] order.
-#[must_use]
-pub fn feature_cells(feature: &FeatureResult) -> [String; 7] {
-    [
-        feature.name.clone(),
-        feature.kind.clone(),
-        auc_interval(feature.auc, feature.auc_low, feature.auc_high),
-        fixed(feature.heldout_info_nats, 4),
-        format!("{:.4}", feature.ami),
-        feature.flag.as_str().to_owned(),
-        acceptance_marker(feature).to_owned(),
-    ]
-}
-
-/// Headers of the pair table.
-pub const PAIR_HEADERS: [&str; 4] = ["pair", "AUC [95% CI]", "gain", "flag"];
-
-/// One row of the pair table, in [`PAIR_HEADERS`] order.
-#[must_use]
-pub fn pair_cells(pair: &PairResult) -> [String; 4] {
-    [
-        format!("{} + {}", pair.features[0], pair.features[1]),
-        auc_interval(Some(pair.auc), Some(pair.auc_low), Some(pair.auc_high)),
-        signed(pair.gain, 3),
-        pair.flag.as_str().to_owned(),
-    ]
-}
-
 /// One reproducibility setting: a label and its value; `literal` values
 /// (hashes, commands) are shown verbatim in code style.
 pub struct Setting {
@@ -200,31 +163,6 @@ fn rows_summary(report: &Report) -> String {
     text
 }
 
-/// One cell of a level-composition table.
-#[derive(Debug, Clone, PartialEq)]
-pub enum Cell {
-    /// A formatted count or share.
-    Value(String),
-    /// Below `min_cell`; the value is withheld.
-    Suppressed,
-}
-
-/// A composition row: the level label, its row count, then one share per
-/// protected class. A suppressed count suppresses the whole row, since its
-/// shares would reveal the small counts.
-#[must_use]
-pub fn composition_cells(level: &LevelComposition) -> Vec<Cell> {
-    let Some(count) = level.count else {
-        return vec![Cell::Suppressed; level.shares.len() + 1];
-    };
-    std::iter::once(Cell::Value(count.to_string()))
-        .chain(level.shares.iter().map(|share| match share {
-            Some(s) => Cell::Value(percent(*s)),
-            None => Cell::Suppressed,
-        }))
-        .collect()
-}
-
 /// Features whose flag is raised and whose level composition was kept.
 #[must_use]
 pub fn flagged_compositions(
@@ -235,6 +173,14 @@ pub fn flagged_compositions(
         .filter(|f| f.flag != super::Flag::Clear)
         .filter_map(|f| f.composition.as_deref().map(|c| (f, c)))
         .collect()
+}
+
+/// Drop-one results by AUC lost, largest loss first.
+#[must_use]
+pub fn drop_one_by_loss(whole: &WholeSet) -> Vec<&DropOne> {
+    let mut drops: Vec<&DropOne> = whole.drop_one.iter().collect();
+    drops.sort_by(|a, b| b.delta.total_cmp(&a.delta));
+    drops
 }
 
 /// The sentence that closes a removal plan, shared wording for every format.
@@ -291,14 +237,9 @@ pub fn truncate(text: &str, max: usize) -> String {
     format!("{head_text}…{tail_text}")
 }
 
-/// "Kind: …; positive class: …; classes: a (n), …; entropy … nats." for one
-/// attribute, every label passed through the format's `escape`.
+/// "Kind: …; positive class: …; classes: a (n), …; entropy … nats." for one attribute.
 #[must_use]
-pub fn attribute_summary(
-    result: &ProtectedResult,
-    min_cell: u64,
-    escape: fn(&str) -> String,
-) -> String {
+pub fn attribute_summary(result: &ProtectedResult, min_cell: u64) -> String {
     let levels: Vec<String> = result
         .levels
         .iter()
@@ -306,17 +247,17 @@ pub fn attribute_summary(
             let count = l
                 .count
                 .map_or_else(|| suppressed(min_cell), |c| c.to_string());
-            format!("{} ({})", escape(&l.label), escape(&count))
+            format!("{} ({count})", l.label)
         })
         .collect();
     let positive = result
         .positive
         .as_deref()
-        .map(|p| format!("; positive class: {}", escape(p)))
+        .map(|p| format!("; positive class: {p}"))
         .unwrap_or_default();
     format!(
         "Kind: {}{positive}; classes: {}; entropy {:.4} nats.",
-        escape(&result.kind),
+        result.kind,
         levels.join(", "),
         result.entropy_nats
     )
@@ -326,16 +267,6 @@ pub fn attribute_summary(
 mod tests {
     use super::*;
     use crate::report::sample::sample_report;
-
-    #[test]
-    fn suppressed_count_withholds_every_share_of_the_level() {
-        let level = LevelComposition {
-            label: "rare".into(),
-            count: None,
-            shares: vec![Some(0.25), Some(0.75)],
-        };
-        assert_eq!(composition_cells(&level), vec![Cell::Suppressed; 3]);
-    }
 
     #[test]
     fn ranking_puts_highest_auc_first_and_missing_last() {

@@ -1,12 +1,13 @@
 //! `report.html`: one self-contained page (inline CSS and SVG; no script,
 //! font, image or address of any kind) that reads on screen and prints on A4.
 
-use super::format::{self, Cell, FEATURE_HEADERS, PAIR_HEADERS, TOP_PAIRS, escape_markup as esc};
-use super::svg::{self, MAX_ROC_CURVES, RocSeries};
-use super::{
-    AddedSource, AucInterval, Flag, LevelComposition, PolicyOutcome, ProtectedResult, Renderer,
-    Report, WholeSet,
+use super::Flag;
+use super::format::escape_markup as esc;
+use super::page::{
+    Backend, Cell, CellStyle, Chart, Heading, KeyValues, Page, Role, Section, Table, Tone,
+    verdict_tone,
 };
+use super::svg;
 
 /// Self-contained HTML renderer.
 pub struct HtmlRenderer;
@@ -32,10 +33,13 @@ td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-sp
 td:first-child { overflow-wrap: anywhere; max-width: 320px; }
 table.settings th { width: 150px; }
 code { font-family: ui-monospace, "DejaVu Sans Mono", monospace; font-size: 0.92em; overflow-wrap: anywhere; }
+.tone-alarm { color: #b3261e; }
+.tone-caution { color: #d98c00; }
+.tone-calm { color: #5e8f6e; }
 .flag { display: inline-block; min-width: 54px; padding: 0 6px; border-radius: 3px; color: #fff; text-align: center; font-size: 0.85em; font-weight: 600; }
-.flag-proxy { background: #b3261e; }
-.flag-review { background: #d98c00; }
-.flag-clear { background: #5e8f6e; }
+.flag.tone-alarm { background: #b3261e; }
+.flag.tone-caution { background: #d98c00; }
+.flag.tone-calm { background: #5e8f6e; }
 .accepted { font-weight: 600; }
 td.suppressed { color: var(--muted); font-style: italic; }
 figure { margin: 14px 0 20px; }
@@ -56,45 +60,21 @@ ul { padding-left: 22px; }
 }
 "#;
 
-/// A header row and body rows of already-escaped cells; `numeric` columns align right.
-fn table(class: &str, headers: &[&str], rows: &[Vec<String>], numeric: &[usize]) -> String {
-    let align = |c: usize| {
-        if numeric.contains(&c) {
-            r#" class="num""#
-        } else {
-            ""
-        }
-    };
-    let head: String = headers
-        .iter()
-        .enumerate()
-        .map(|(c, h)| format!("<th{}>{}</th>", align(c), esc(h)))
-        .collect();
-    let body: String = rows
-        .iter()
-        .map(|row| {
-            let cells: String = row
-                .iter()
-                .enumerate()
-                .map(|(c, cell)| format!("<td{}>{cell}</td>", align(c)))
-                .collect();
-            format!("<tr>{cells}</tr>\n")
-        })
-        .collect();
-    format!(r#"<table class="{class}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"#)
+/// The CSS class of a tone.
+fn tone_class(tone: Tone) -> &'static str {
+    match tone {
+        Tone::Alarm => "tone-alarm",
+        Tone::Caution => "tone-caution",
+        Tone::Calm => "tone-calm",
+    }
 }
 
-/// Label/value rows, values already escaped.
-fn key_values(class: &str, rows: &[(&str, String)]) -> String {
-    let body: String = rows
-        .iter()
-        .map(|(k, v)| format!("<tr><th>{}</th><td>{v}</td></tr>\n", esc(k)))
-        .collect();
-    format!(r#"<table class="{class}"><tbody>{body}</tbody></table>"#)
-}
-
-fn flag_badge(flag: Flag) -> String {
-    format!(r#"<span class="flag flag-{0}">{0}</span>"#, flag.as_str())
+fn verdict_badge(flag: Flag) -> String {
+    format!(
+        r#"<span class="flag {}">{}</span>"#,
+        tone_class(verdict_tone(flag)),
+        flag.as_str()
+    )
 }
 
 /// An escaped name that may wrap after `_`, `.` or `|` in narrow table columns.
@@ -109,422 +89,156 @@ fn breakable(name: &str) -> String {
     out
 }
 
-fn code(text: &str) -> String {
-    format!("<code>{}</code>", esc(text))
-}
-
-/// A chart with a caption below it.
-fn figure(chart: String, caption: &str) -> String {
-    format!(
-        "<figure>{chart}<figcaption>{}</figcaption></figure>\n",
-        esc(caption)
-    )
-}
-
-fn names(list: &[String]) -> String {
-    if list.is_empty() {
-        return "none".to_owned();
+fn cell(cell: &Cell) -> String {
+    let text = &cell.text;
+    match cell.style {
+        CellStyle::Plain => esc(text),
+        CellStyle::Name => breakable(text),
+        CellStyle::Literal => format!("<code>{}</code>", esc(text)),
+        CellStyle::Verdict(flag) => verdict_badge(flag),
+        CellStyle::Acceptance => format!(r#"<span class="accepted">{}</span>"#, esc(text)),
+        CellStyle::Suppressed => {
+            format!(
+                r#"<span class="suppressed">{}<sup>*</sup></span>"#,
+                esc(text)
+            )
+        }
+        CellStyle::Toned(tone) => {
+            format!(r#"<span class="{}">{}</span>"#, tone_class(tone), esc(text))
+        }
     }
-    list.iter().map(|n| esc(n)).collect::<Vec<_>>().join(", ")
 }
 
-fn interval(a: &AucInterval) -> String {
-    format::auc_interval(Some(a.auc), Some(a.auc_low), Some(a.auc_high))
-}
-
-fn settings_section(report: &Report) -> String {
-    let rows: Vec<(&str, String)> = format::settings(report)
-        .into_iter()
-        .map(|s| {
-            let value = if s.literal {
-                code(&s.value)
-            } else {
-                esc(&s.value)
-            };
-            (s.label, value)
-        })
-        .collect();
-    format!(
-        "<section><h2>Dataset and settings</h2>{}</section>\n",
-        key_values("settings", &rows)
-    )
-}
-
-fn protected_section(result: &ProtectedResult, report: &Report) -> String {
-    let mut out = format!(
-        r#"<section class="protected"><h2>Protected attribute: {}</h2><p class="headline">{}</p><p class="meta">{}</p>"#,
-        esc(&result.protected),
-        esc(&result.headline),
-        format::attribute_summary(result, report.settings.min_cell, esc)
-    );
-    out.push_str(&features_part(result, report));
-    out.push_str(&pairs_part(result));
-    if let Some(whole) = &result.whole_set {
-        out.push_str(&whole_set_part(whole, result, report.settings.target_auc));
+/// The SVG of a chart.
+fn svg_of(chart: &Chart) -> String {
+    match chart {
+        Chart::LeakageBars {
+            title,
+            features,
+            thresholds,
+        } => svg::leakage_bars(title, features, thresholds),
+        Chart::Roc { title, series } => svg::roc_curves(title, series),
+        Chart::PairHeatmap { title, pairs } => svg::pair_heatmap(title, pairs),
+        Chart::RemovalSteps {
+            title,
+            whole,
+            target_auc,
+        } => svg::removal_steps(title, whole, *target_auc),
     }
-    out.push_str(&compositions_part(result, report.settings.min_cell));
-    out.push_str("</section>\n");
-    out
 }
 
-fn features_part(result: &ProtectedResult, report: &Report) -> String {
-    let ranked = format::ranked_features(result);
-    let with_auc = ranked.iter().filter(|f| f.auc.is_some()).count();
-    let shown = with_auc.min(svg::MAX_BARS);
-    let bars = svg::leakage_bars(
-        &format!("Leakage of {} per feature", result.protected),
-        &ranked,
-        &report.settings.thresholds,
-    );
-    let caption = format!(
-        "Out-of-fold AUC of the best surrogate per feature ({shown} of {} features drawn; \
-         features without an AUC are listed in the table). Flags apply to the interval's lower bound.",
-        ranked.len()
-    );
-    let rows: Vec<Vec<String>> = ranked
-        .iter()
-        .map(|f| {
-            let [name, kind, auc, info, ami, _, policy] = format::feature_cells(f);
-            vec![
-                breakable(&name),
-                esc(&kind),
-                auc,
-                info,
-                ami,
-                flag_badge(f.flag),
-                format!(r#"<span class="accepted">{}</span>"#, esc(&policy)),
-            ]
-        })
-        .collect();
-    let mut out = format!("<h3>Features ranked by AUC</h3>{}", figure(bars, &caption));
-    out.push_str(&table("features", &FEATURE_HEADERS, &rows, &[2, 3, 4]));
-    out.push_str(&roc_part(result, &ranked));
-    out
-}
-
-fn roc_part(result: &ProtectedResult, ranked: &[&super::FeatureResult]) -> String {
-    let mut series: Vec<RocSeries> = ranked
-        .iter()
-        .filter_map(|f| {
-            f.roc.as_deref().map(|points| RocSeries {
-                label: &f.name,
-                auc: f.auc,
-                points,
-                emphasis: false,
-            })
-        })
-        .take(MAX_ROC_CURVES)
-        .collect();
-    if let Some((whole, points)) = result
-        .whole_set
-        .as_ref()
-        .and_then(|w| w.roc.as_deref().map(|p| (w, p)))
-    {
-        series.insert(
-            0,
-            RocSeries {
-                label: "whole feature set",
-                auc: Some(whole.auc),
-                points,
-                emphasis: true,
-            },
-        );
-    }
-    if series.is_empty() {
-        return String::new();
-    }
-    let chart = svg::roc_curves(&format!("ROC curves for {}", result.protected), &series);
-    String::from("<h4>ROC curves</h4>")
-        + &figure(
-            chart,
-            "ROC curves of the best out-of-fold surrogates; the heavy line is the whole feature set, the dashed diagonal is chance.",
-        )
-}
-
-fn pairs_part(result: &ProtectedResult) -> String {
-    if result.pairs.is_empty() {
-        return String::new();
-    }
-    let all = format::top_pairs(result, result.pairs.len());
-    let chart = svg::pair_heatmap(&format!("Pair gains for {}", result.protected), &all);
-    let top = &all[..all.len().min(TOP_PAIRS)];
-    let rows: Vec<Vec<String>> = top
-        .iter()
-        .map(|p| {
-            let [pair, auc, gain, _] = format::pair_cells(p);
-            vec![breakable(&pair), auc, gain, flag_badge(p.flag)]
-        })
-        .collect();
-    format!(
-        "<h3>Pairs with the largest gain (top {} of {})</h3>{}{}",
-        top.len(),
-        result.pairs.len(),
-        figure(
-            chart,
-            "Gain of each pair's AUC over its better single feature; warm cells are leakage that appears only jointly."
-        ),
-        table("pairs", &PAIR_HEADERS, &rows, &[1, 2])
-    )
-}
-
-fn whole_set_part(whole: &WholeSet, result: &ProtectedResult, target_auc: f64) -> String {
-    let hand_till = whole
-        .hand_till
-        .map(|m| format!(", Hand and Till's M {m:.3}"))
+fn heading(level: usize, heading: &Heading) -> String {
+    let badge = heading
+        .verdict
+        .map(|f| format!(" {}", verdict_badge(f)))
         .unwrap_or_default();
-    let mut out = format!(
-        "<h3>Whole feature set</h3><p>Surrogate {} on {} features: AUC {}, balanced error rate {:.3}{hand_till}.</p>",
-        esc(&whole.surrogate),
-        whole.features_used,
-        format::auc_interval(Some(whole.auc), Some(whole.auc_low), Some(whole.auc_high)),
-        whole.ber
-    );
-    out.push_str(&drop_one_table(whole));
-    out.push_str(&format!(
-        "<h4>Removal plan (target AUC {target_auc:.2})</h4>"
-    ));
-    let chart = svg::removal_steps(
-        &format!("Removal plan for {}", result.protected),
-        whole,
-        target_auc,
-    );
-    out.push_str(&figure(
-        chart,
-        "Whole-set AUC after each greedy removal, with its 95% DeLong interval; dashed line: target.",
-    ));
-    let rows: Vec<Vec<String>> = whole
-        .removal_plan
-        .iter()
-        .enumerate()
-        .map(|(i, s)| {
-            vec![
-                (i + 1).to_string(),
-                breakable(&s.remove),
-                format::auc_interval(Some(s.auc_after), Some(s.auc_low), Some(s.auc_high)),
-            ]
-        })
-        .collect();
-    if !rows.is_empty() {
-        out.push_str(&table(
-            "plan",
-            &["step", "remove", "AUC after [95% CI]"],
-            &rows,
-            &[0, 2],
-        ));
-    }
-    out.push_str(&format!(
-        "<p>{}</p>",
-        esc(&format::removal_outcome(whole, target_auc))
-    ));
-    out
+    format!("<h{level}>{}{badge}</h{level}>", esc(&heading.text))
 }
 
-fn drop_one_table(whole: &WholeSet) -> String {
-    if whole.drop_one.is_empty() {
-        return String::new();
+impl Backend for HtmlRenderer {
+    const FILE_NAME: &'static str = "report.html";
+
+    fn paragraph(&self, role: Role, text: &str) -> String {
+        let text = esc(text);
+        match role {
+            Role::Body => format!("<p>{text}</p>"),
+            Role::Headline => format!(r#"<p class="headline">{text}</p>"#),
+            Role::Meta => format!(r#"<p class="meta">{text}</p>"#),
+            Role::Footnote => format!(r#"<p class="footnote"><sup>*</sup> {text}</p>"#),
+        }
     }
-    let mut drops: Vec<_> = whole.drop_one.iter().collect();
-    drops.sort_by(|a, b| b.delta.total_cmp(&a.delta));
-    let rows: Vec<Vec<String>> = drops
-        .into_iter()
-        .map(|d| {
-            vec![
-                esc(&d.feature),
-                format::auc_interval(Some(d.auc), Some(d.auc_low), Some(d.auc_high)),
-                format::signed(d.delta, 3),
-                format::fixed(d.p_value, 4),
-            ]
-        })
-        .collect();
-    format!(
-        "<h4>Drop-one ablation</h4>{}",
-        table(
-            "drop-one",
-            &["without", "AUC [95% CI]", "AUC lost", "p (DeLong)"],
-            &rows,
-            &[1, 2, 3]
+
+    fn key_values(&self, kv: &KeyValues) -> String {
+        let body: String = kv
+            .rows
+            .iter()
+            .map(|(k, v)| format!("<tr><th>{}</th><td>{}</td></tr>\n", esc(k), cell(v)))
+            .collect();
+        format!(r#"<table class="settings"><tbody>{body}</tbody></table>"#)
+    }
+
+    fn table(&self, t: &Table) -> String {
+        let align = |c: usize| {
+            if t.columns[c].numeric {
+                r#" class="num""#
+            } else {
+                ""
+            }
+        };
+        let head: String = t
+            .columns
+            .iter()
+            .enumerate()
+            .map(|(c, column)| format!("<th{}>{}</th>", align(c), esc(&column.title)))
+            .collect();
+        let body: String = t
+            .rows
+            .iter()
+            .map(|row| {
+                let cells: String = row
+                    .cells
+                    .iter()
+                    .enumerate()
+                    .map(|(c, value)| format!("<td{}>{}</td>", align(c), cell(value)))
+                    .collect();
+                format!("<tr>{cells}</tr>\n")
+            })
+            .collect();
+        let name = t.name;
+        format!(
+            r#"<table class="{name}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"#
         )
-    )
-}
-
-fn compositions_part(result: &ProtectedResult, min_cell: u64) -> String {
-    let flagged = format::flagged_compositions(result);
-    if flagged.is_empty() {
-        return String::new();
-    }
-    let mut out = String::from("<h3>Level composition of flagged features</h3>");
-    for (feature, levels) in flagged {
-        out.push_str(&format!(
-            "<h4>{} {}</h4>{}",
-            esc(&feature.name),
-            flag_badge(feature.flag),
-            composition_table(levels, result, min_cell)
-        ));
-    }
-    out.push_str(&format!(
-        r#"<p class="footnote"><sup>*</sup> {}: fewer than {min_cell} rows; the count and the group shares of that level are withheld.</p>"#,
-        esc(&format::suppressed(min_cell))
-    ));
-    out
-}
-
-fn composition_table(
-    levels: &[LevelComposition],
-    result: &ProtectedResult,
-    min_cell: u64,
-) -> String {
-    let share_headers: Vec<String> = result
-        .levels
-        .iter()
-        .map(|l| format!("share {}", l.label))
-        .collect();
-    let mut headers = vec!["level", "rows"];
-    headers.extend(share_headers.iter().map(String::as_str));
-    let suppressed = format!(
-        r#"<span class="suppressed">{}<sup>*</sup></span>"#,
-        esc(&format::suppressed(min_cell))
-    );
-    let rows: Vec<Vec<String>> = levels
-        .iter()
-        .map(|level| {
-            std::iter::once(esc(&level.label))
-                .chain(
-                    format::composition_cells(level)
-                        .into_iter()
-                        .map(|c| match c {
-                            Cell::Value(v) => v,
-                            Cell::Suppressed => suppressed.clone(),
-                        }),
-                )
-                .collect()
-        })
-        .collect();
-    let numeric: Vec<usize> = (1..headers.len()).collect();
-    table("composition", &headers, &rows, &numeric)
-}
-
-fn list_section(heading: &str, items: &[String]) -> String {
-    if items.is_empty() {
-        return String::new();
-    }
-    let items: String = items.iter().map(|i| format!("<li>{i}</li>")).collect();
-    format!(
-        "<section><h2>{}</h2><ul>{items}</ul></section>\n",
-        esc(heading)
-    )
-}
-
-fn policy_section(policy: &PolicyOutcome) -> String {
-    let rows = [
-        ("file", esc(&policy.file)),
-        ("SHA-256", code(&policy.sha256)),
-        ("evaluated on", esc(&policy.evaluated_on)),
-        ("accepted", names(&policy.accepted_features)),
-        ("expired acceptances", names(&policy.expired_acceptances)),
-        ("failing", names(&policy.failing)),
-    ];
-    format!(
-        "<section><h2>Review policy</h2>{}</section>\n",
-        key_values("settings", &rows)
-    )
-}
-
-fn added_source_section(added: &AddedSource) -> String {
-    let rows = [
-        ("source", esc(&added.source)),
-        ("SHA-256", code(&added.sha256)),
-        ("join key", esc(&added.key)),
-        ("new columns", names(&added.new_columns)),
-        (
-            "rows matched",
-            format!("{} of {}", added.matched_rows, added.base_rows),
-        ),
-        (
-            "unmatched (base / source)",
-            format!(
-                "{} / {}",
-                added.unmatched_base_rows, added.unmatched_source_rows
-            ),
-        ),
-        (
-            "duplicate keys (base / source)",
-            format!(
-                "{} / {}",
-                added.duplicate_keys_in_base, added.duplicate_keys_in_source
-            ),
-        ),
-    ];
-    let effects: Vec<Vec<String>> = added
-        .per_protected
-        .iter()
-        .map(|e| {
-            vec![
-                esc(&e.protected),
-                interval(&e.auc_without),
-                interval(&e.auc_with),
-                format::signed(e.difference, 3),
-                e.p_value
-                    .map_or_else(|| "n/a".to_string(), |p| format!("{p:.4}")),
-            ]
-        })
-        .collect();
-    format!(
-        "<section><h2>Added source</h2>{}{}</section>\n",
-        key_values("settings", &rows),
-        table(
-            "added",
-            &[
-                "protected",
-                "AUC without",
-                "AUC with",
-                "difference",
-                "p (DeLong)"
-            ],
-            &effects,
-            &[1, 2, 3, 4]
-        )
-    )
-}
-
-impl Renderer for HtmlRenderer {
-    fn file_name(&self) -> &'static str {
-        "report.html"
     }
 
-    fn render(&self, report: &Report) -> String {
-        let source = esc(&report.dataset.source);
-        let mut out = format!(
+    fn list(&self, items: &[String]) -> String {
+        let items: String = items
+            .iter()
+            .map(|i| format!("<li>{}</li>", esc(i)))
+            .collect();
+        format!("<ul>{items}</ul>")
+    }
+
+    fn callout(&self, label: &str, text: &str) -> String {
+        let (label, text) = (esc(label), esc(text));
+        format!("<aside class=\"caution\" role=\"note\"><strong>{label}.</strong> {text}</aside>\n")
+    }
+
+    fn figure(&self, chart: &Chart, caption: &str) -> String {
+        let (svg, caption) = (svg_of(chart), esc(caption));
+        format!("<figure>{svg}<figcaption>{caption}</figcaption></figure>\n")
+    }
+
+    /// Top-level sections are `<section>` elements; deeper ones only headings.
+    fn section(&self, section: &Section, level: usize, body: &str) -> String {
+        let heading = section
+            .heading
+            .as_ref()
+            .map(|h| heading(level, h))
+            .unwrap_or_default();
+        if level > 2 {
+            return heading + body;
+        }
+        let class = if section.starts_page {
+            r#" class="protected""#
+        } else {
+            ""
+        };
+        format!("<section{class}>{heading}{body}</section>\n")
+    }
+
+    fn document(&self, page: &Page, lead: &str, sections: &str) -> String {
+        let title = esc(&page.title);
+        let subtitle = page
+            .subtitle
+            .as_ref()
+            .map(|s| format!(r#"<p class="subtitle">{}</p>"#, esc(s)))
+            .unwrap_or_default();
+        format!(
             "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\
              <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\
-             <title>Proxy leakage screen: {source}</title><style>{STYLE}</style></head>\n<body><main>\
-             <h1>Proxy leakage screen: {source}</h1><p class=\"subtitle\">{} {}; {} of {} rows used.</p>\
-             <aside class=\"caution\" role=\"note\"><strong>Caution.</strong> {}</aside>\n",
-            esc(&report.tool.name),
-            esc(&report.tool.version),
-            report.dataset.rows_used,
-            report.dataset.rows,
-            esc(&report.caution)
-        );
-        out.push_str(&settings_section(report));
-        for result in &report.results {
-            out.push_str(&protected_section(result, report));
-        }
-        let skipped: Vec<String> = report
-            .skipped_columns
-            .iter()
-            .map(|c| format!("{}: {}", esc(&c.name), esc(&c.reason)))
-            .collect();
-        out.push_str(&list_section("Skipped columns", &skipped));
-        let notes: Vec<String> = report.notes.iter().map(|n| esc(n)).collect();
-        out.push_str(&list_section("Notes", &notes));
-        if let Some(policy) = &report.policy {
-            out.push_str(&policy_section(policy));
-        }
-        if let Some(added) = &report.added_source {
-            out.push_str(&added_source_section(added));
-        }
-        out.push_str("</main></body></html>\n");
-        out
+             <title>{title}</title><style>{STYLE}</style></head>\n<body><main><h1>{title}</h1>\
+             {subtitle}{lead}{sections}</main></body></html>\n"
+        )
     }
 }
 
@@ -532,6 +246,7 @@ impl Renderer for HtmlRenderer {
 mod tests {
     use super::*;
     use crate::report::sample::{AWKWARD_NAME, SUPPRESSED_SHARE, sample_report};
+    use crate::report::{Renderer, format};
 
     fn render() -> String {
         HtmlRenderer.render(&sample_report())

@@ -1,11 +1,7 @@
 //! `report.md`: the report as it is pasted into a review ticket or merge
 //! request, with the settings needed to reproduce the run.
 
-use super::format::{self, Cell, FEATURE_HEADERS, PAIR_HEADERS, TOP_PAIRS};
-use super::{
-    AddedSource, FeatureResult, LevelComposition, PolicyOutcome, ProtectedResult, Renderer, Report,
-    WholeSet,
-};
+use super::page::{Backend, Cell, CellStyle, Heading, KeyValues, Page, Role, Section, Table};
 
 /// GitHub-flavoured Markdown renderer.
 pub struct MarkdownRenderer;
@@ -60,8 +56,8 @@ fn table_code(text: &str) -> String {
     format!("{fence} {} {fence}", text.replace('|', "\\|"))
 }
 
-/// A table from already-escaped cells.
-fn table(headers: &[&str], rows: &[Vec<String>]) -> String {
+/// A table from already-escaped header and row cells.
+fn table(headers: &[String], rows: &[Vec<String>]) -> String {
     let mut out = format!("| {} |\n", headers.join(" | "));
     out.push_str(&format!("|{}\n", "---|".repeat(headers.len())));
     for row in rows {
@@ -71,309 +67,88 @@ fn table(headers: &[&str], rows: &[Vec<String>]) -> String {
     out
 }
 
-/// Escapes every cell of a row built by [`format`].
-fn escaped<const N: usize>(cells: [String; N]) -> Vec<String> {
-    cells.iter().map(|c| escape_inline(c)).collect()
+/// A cell's text escaped for a table; verbatim text becomes a code span.
+fn cell(cell: &Cell) -> String {
+    match cell.style {
+        CellStyle::Literal => table_code(&cell.text),
+        _ => escape_inline(&cell.text),
+    }
 }
 
-fn settings_section(report: &Report) -> String {
-    let rows: Vec<Vec<String>> = format::settings(report)
-        .into_iter()
-        .map(|s| {
-            let value = if s.literal {
-                table_code(&s.value)
-            } else {
-                escape_inline(&s.value)
-            };
-            vec![s.label.to_owned(), value]
-        })
-        .collect();
+fn heading(level: usize, heading: &Heading) -> String {
+    let verdict = heading
+        .verdict
+        .map(|f| format!(" ({})", f.as_str()))
+        .unwrap_or_default();
     format!(
-        "## Dataset and settings\n\n{}",
-        table(&["setting", "value"], &rows)
+        "{} {}{verdict}\n\n",
+        "#".repeat(level),
+        escape_inline(&heading.text)
     )
 }
 
-fn protected_section(result: &ProtectedResult, report: &Report) -> String {
-    let mut out = format!(
-        "## Protected attribute: {}\n\n",
-        escape_inline(&result.protected)
-    );
-    out.push_str(&format!("**{}**\n\n", escape_inline(&result.headline)));
-    out.push_str(&format::attribute_summary(
-        result,
-        report.settings.min_cell,
-        escape_inline,
-    ));
-    out.push_str("\n\n");
-    out.push_str("### Features ranked by AUC\n\n");
-    let rows: Vec<Vec<String>> = format::ranked_features(result)
-        .into_iter()
-        .map(|f| escaped(format::feature_cells(f)))
-        .collect();
-    out.push_str(&table(&FEATURE_HEADERS, &rows));
-    out.push_str(&pairs_section(result));
-    if let Some(whole) = &result.whole_set {
-        out.push_str(&whole_set_section(whole, report.settings.target_auc));
-    }
-    out.push_str(&compositions_section(result, report.settings.min_cell));
-    out
-}
+impl Backend for MarkdownRenderer {
+    const FILE_NAME: &'static str = "report.md";
 
-fn pairs_section(result: &ProtectedResult) -> String {
-    if result.pairs.is_empty() {
-        return String::new();
+    fn paragraph(&self, role: Role, text: &str) -> String {
+        match role {
+            Role::Headline => format!("**{}**\n\n", escape_inline(text)),
+            _ => format!("{}\n\n", escape(text)),
+        }
     }
-    let top = format::top_pairs(result, TOP_PAIRS);
-    let heading = format!(
-        "### Pairs with the largest gain (top {} of {})\n\n",
-        top.len(),
-        result.pairs.len()
-    );
-    let rows: Vec<Vec<String>> = top
-        .into_iter()
-        .map(|p| escaped(format::pair_cells(p)))
-        .collect();
-    heading + &table(&PAIR_HEADERS, &rows)
-}
 
-fn whole_set_section(whole: &WholeSet, target_auc: f64) -> String {
-    let mut out = format!(
-        "### Whole feature set\n\nSurrogate {} on {} features: AUC {}, balanced error rate {:.3}{}.\n\n",
-        escape_inline(&whole.surrogate),
-        whole.features_used,
-        format::auc_interval(Some(whole.auc), Some(whole.auc_low), Some(whole.auc_high)),
-        whole.ber,
-        whole
-            .hand_till
-            .map(|m| format!(", Hand and Till's M {m:.3}"))
-            .unwrap_or_default()
-    );
-    if !whole.drop_one.is_empty() {
-        let mut drops: Vec<_> = whole.drop_one.iter().collect();
-        drops.sort_by(|a, b| b.delta.total_cmp(&a.delta));
-        let rows: Vec<Vec<String>> = drops
-            .into_iter()
-            .map(|d| {
-                vec![
-                    escape_inline(&d.feature),
-                    format::auc_interval(Some(d.auc), Some(d.auc_low), Some(d.auc_high)),
-                    escape_inline(&format::signed(d.delta, 3)),
-                    format::fixed(d.p_value, 4),
-                ]
-            })
+    fn key_values(&self, kv: &KeyValues) -> String {
+        let [key, value] = kv.labels.unwrap_or(["", ""]);
+        let rows: Vec<Vec<String>> = kv
+            .rows
+            .iter()
+            .map(|(k, v)| vec![escape_inline(k), cell(v)])
             .collect();
-        out.push_str("#### Drop-one ablation\n\n");
-        out.push_str(&table(
-            &["without", "AUC [95% CI]", "AUC lost", "p (DeLong)"],
-            &rows,
-        ));
+        table(&[key.to_owned(), value.to_owned()], &rows)
     }
-    out.push_str(&format!(
-        "#### Removal plan (target AUC {target_auc:.2})\n\n"
-    ));
-    let rows: Vec<Vec<String>> = whole
-        .removal_plan
-        .iter()
-        .enumerate()
-        .map(|(i, s)| {
-            vec![
-                (i + 1).to_string(),
-                escape_inline(&s.remove),
-                format::auc_interval(Some(s.auc_after), Some(s.auc_low), Some(s.auc_high)),
-            ]
-        })
-        .collect();
-    if !rows.is_empty() {
-        out.push_str(&table(&["step", "remove", "AUC after [95% CI]"], &rows));
-    }
-    out.push_str(&format!(
-        "{}\n\n",
-        escape(&format::removal_outcome(whole, target_auc))
-    ));
-    out
-}
 
-fn compositions_section(result: &ProtectedResult, min_cell: u64) -> String {
-    let flagged = format::flagged_compositions(result);
-    if flagged.is_empty() {
-        return String::new();
-    }
-    let mut out = String::from("### Level composition of flagged features\n\n");
-    for (feature, levels) in flagged {
-        out.push_str(&composition_table(feature, levels, result, min_cell));
-    }
-    out.push_str(&format!(
-        "{}: fewer than {min_cell} rows; withheld, with the shares of that level.\n\n",
-        escape(&format::suppressed(min_cell))
-    ));
-    out
-}
-
-fn composition_table(
-    feature: &FeatureResult,
-    levels: &[LevelComposition],
-    result: &ProtectedResult,
-    min_cell: u64,
-) -> String {
-    let share_headers: Vec<String> = result
-        .levels
-        .iter()
-        .map(|l| format!("share {}", escape_inline(&l.label)))
-        .collect();
-    let mut headers = vec!["level", "rows"];
-    headers.extend(share_headers.iter().map(String::as_str));
-    let rows: Vec<Vec<String>> = levels
-        .iter()
-        .map(|level| {
-            std::iter::once(escape_inline(&level.label))
-                .chain(
-                    format::composition_cells(level)
-                        .into_iter()
-                        .map(|c| match c {
-                            Cell::Value(v) => escape_inline(&v),
-                            Cell::Suppressed => escape_inline(&format::suppressed(min_cell)),
-                        }),
-                )
-                .collect()
-        })
-        .collect();
-    format!(
-        "#### {} ({})\n\n{}",
-        escape_inline(&feature.name),
-        feature.flag.as_str(),
+    fn table(&self, t: &Table) -> String {
+        let headers: Vec<String> = t.columns.iter().map(|c| escape_inline(&c.title)).collect();
+        let rows: Vec<Vec<String>> = t
+            .rows
+            .iter()
+            .map(|r| r.cells.iter().map(cell).collect())
+            .collect();
         table(&headers, &rows)
-    )
-}
-
-fn bullet_list(heading: &str, items: impl Iterator<Item = String>) -> String {
-    let lines: Vec<String> = items.map(|i| format!("- {i}\n")).collect();
-    if lines.is_empty() {
-        return String::new();
     }
-    format!("## {heading}\n\n{}\n", lines.concat())
-}
 
-/// A comma-separated list of escaped names, or `none`.
-fn names(list: &[String]) -> String {
-    if list.is_empty() {
-        return "none".to_owned();
+    fn list(&self, items: &[String]) -> String {
+        let lines: String = items.iter().map(|i| format!("- {}\n", escape(i))).collect();
+        lines + "\n"
     }
-    list.iter()
-        .map(|n| escape_inline(n))
-        .collect::<Vec<_>>()
-        .join(", ")
-}
 
-fn policy_section(policy: &PolicyOutcome) -> String {
-    let rows = vec![
-        vec!["file".to_owned(), escape_inline(&policy.file)],
-        vec!["SHA-256".to_owned(), table_code(&policy.sha256)],
-        vec![
-            "evaluated on".to_owned(),
-            escape_inline(&policy.evaluated_on),
-        ],
-        vec!["accepted".to_owned(), names(&policy.accepted_features)],
-        vec![
-            "expired acceptances".to_owned(),
-            names(&policy.expired_acceptances),
-        ],
-        vec!["failing".to_owned(), names(&policy.failing)],
-    ];
-    format!("## Review policy\n\n{}", table(&["", ""], &rows))
-}
-
-fn added_source_section(added: &AddedSource) -> String {
-    let rows = vec![
-        vec!["source".to_owned(), escape_inline(&added.source)],
-        vec!["SHA-256".to_owned(), table_code(&added.sha256)],
-        vec!["join key".to_owned(), escape_inline(&added.key)],
-        vec!["new columns".to_owned(), names(&added.new_columns)],
-        vec![
-            "rows matched".to_owned(),
-            format!("{} of {}", added.matched_rows, added.base_rows),
-        ],
-        vec![
-            "unmatched (base / source)".to_owned(),
-            format!(
-                "{} / {}",
-                added.unmatched_base_rows, added.unmatched_source_rows
-            ),
-        ],
-        vec![
-            "duplicate keys (base / source)".to_owned(),
-            format!(
-                "{} / {}",
-                added.duplicate_keys_in_base, added.duplicate_keys_in_source
-            ),
-        ],
-    ];
-    let effects: Vec<Vec<String>> = added
-        .per_protected
-        .iter()
-        .map(|e| {
-            let interval = |a: &super::AucInterval| {
-                format::auc_interval(Some(a.auc), Some(a.auc_low), Some(a.auc_high))
-            };
-            vec![
-                escape_inline(&e.protected),
-                interval(&e.auc_without),
-                interval(&e.auc_with),
-                escape_inline(&format::signed(e.difference, 3)),
-                e.p_value
-                    .map_or_else(|| "n/a".to_string(), |p| format!("{p:.4}")),
-            ]
-        })
-        .collect();
-    format!(
-        "## Added source\n\n{}{}",
-        table(&["", ""], &rows),
-        table(
-            &[
-                "protected",
-                "AUC without",
-                "AUC with",
-                "difference",
-                "p (DeLong)"
-            ],
-            &effects
+    fn callout(&self, label: &str, text: &str) -> String {
+        format!(
+            "> **{}.** {}\n\n",
+            escape_inline(label),
+            escape_inline(text)
         )
-    )
-}
-
-impl Renderer for MarkdownRenderer {
-    fn file_name(&self) -> &'static str {
-        "report.md"
     }
 
-    fn render(&self, report: &Report) -> String {
-        let mut out = format!(
-            "# Proxy leakage screen: {}\n\n> **Caution.** {}\n\n",
-            escape_inline(&report.dataset.source),
-            escape_inline(&report.caution)
-        );
-        out.push_str(&settings_section(report));
-        for result in &report.results {
-            out.push_str(&protected_section(result, report));
+    /// A section is left out when nothing in it can be shown (charts only).
+    fn section(&self, section: &Section, level: usize, body: &str) -> String {
+        match &section.heading {
+            _ if body.is_empty() => String::new(),
+            Some(h) => heading(level, h) + body,
+            None => body.to_owned(),
         }
-        out.push_str(&bullet_list(
-            "Skipped columns",
-            report
-                .skipped_columns
-                .iter()
-                .map(|c| format!("{}: {}", escape(&c.name), escape_inline(&c.reason))),
-        ));
-        out.push_str(&bullet_list(
-            "Notes",
-            report.notes.iter().map(|n| escape(n)),
-        ));
-        if let Some(policy) = &report.policy {
-            out.push_str(&policy_section(policy));
-        }
-        if let Some(added) = &report.added_source {
-            out.push_str(&added_source_section(added));
-        }
-        out
+    }
+
+    fn document(&self, page: &Page, lead: &str, sections: &str) -> String {
+        let subtitle = page
+            .subtitle
+            .as_ref()
+            .map(|s| format!("{}\n\n", escape(s)))
+            .unwrap_or_default();
+        format!(
+            "# {}\n\n{subtitle}{lead}{sections}",
+            escape_inline(&page.title)
+        )
     }
 }
 
@@ -381,6 +156,7 @@ impl Renderer for MarkdownRenderer {
 mod tests {
     use super::*;
     use crate::report::sample::{AWKWARD_NAME, PIPE_NAME, SUPPRESSED_SHARE, sample_report};
+    use crate::report::{Renderer, format};
 
     fn render() -> String {
         MarkdownRenderer.render(&sample_report())
@@ -424,7 +200,13 @@ mod tests {
     #[test]
     fn table_rows_keep_their_column_count() {
         let text = render();
-        let header_cells = FEATURE_HEADERS.len();
+        let header_cells = text
+            .lines()
+            .find(|l| l.starts_with("| feature |"))
+            .unwrap()
+            .matches(" | ")
+            .count()
+            + 1;
         let row = text
             .lines()
             .find(|l| l.starts_with(r"| région\|code"))

@@ -1,12 +1,15 @@
-//! The report contract and its renderers. Renderers turn a finished
-//! [`Report`] into bytes; they compute no statistics.
+//! The report contract and its renderers. [`layout`] turns a finished
+//! [`Report`] into a format-neutral [`page::Page`]; the Markdown, HTML and
+//! terminal backends turn a page into bytes. None computes a statistic.
 
 pub mod contract;
 pub mod explanation;
 pub mod format;
 pub mod html;
 pub mod json;
+pub mod layout;
 pub mod markdown;
+pub mod page;
 #[cfg(test)]
 mod sample;
 pub mod svg;
@@ -20,4 +23,15 @@ pub trait Renderer {
     fn file_name(&self) -> &'static str;
     /// The whole document.
     fn render(&self, report: &Report) -> String;
+}
+
+/// Every page format renders a report through its page.
+impl<B: page::Backend> Renderer for B {
+    fn file_name(&self) -> &'static str {
+        B::FILE_NAME
+    }
+
+    fn render(&self, report: &Report) -> String {
+        self.render_page(&layout::report_page(report))
+    }
 }

@@ -4,6 +4,7 @@
 //! `<title>` and axis labels, and every text is escaped.
 
 use super::format::{escape_markup, signed, truncate};
+use super::page::{Tone, VERDICTS, verdict_tone};
 use super::{FeatureResult, Flag, PairResult, Thresholds, WholeSet};
 use std::collections::BTreeMap;
 use std::fmt::Write;
@@ -34,13 +35,12 @@ const SERIES: [&str; MAX_ROC_CURVES] = [
     "#c2185b", "#e08e0b", "#2e7d32", "#6a4fa3", "#00838f", "#8d6e63", "#d84315", "#546e7a",
 ];
 
-/// The report palette for a verdict, shared by bars, legends and tables.
-#[must_use]
-pub fn flag_colour(flag: Flag) -> &'static str {
-    match flag {
-        Flag::Proxy => "#b3261e",
-        Flag::Review => "#d98c00",
-        Flag::Clear => "#5e8f6e",
+/// The report palette for a verdict (the page stylesheet uses the same colours).
+fn flag_colour(flag: Flag) -> &'static str {
+    match verdict_tone(flag) {
+        Tone::Alarm => "#b3261e",
+        Tone::Caution => "#d98c00",
+        Tone::Calm => "#5e8f6e",
     }
 }
 
@@ -242,7 +242,7 @@ fn diamond(canvas: &mut Canvas, at: (f64, f64)) {
 /// Flag swatches, the interval whisker and the accepted mark, in one row at `y`.
 fn bar_legend(canvas: &mut Canvas, y: f64) {
     let mut x = 20.0;
-    for flag in [Flag::Proxy, Flag::Review, Flag::Clear] {
+    for flag in VERDICTS {
         canvas.rect((x, y - 9.0), (14.0, 10.0), flag_colour(flag), None);
         canvas.text((x + 19.0, y), flag.as_str(), Font::new(11.0, "start"));
         x += 30.0 + text_width(flag.as_str(), 11.0);
@@ -375,6 +375,7 @@ fn feature_bar(
 }
 
 /// One curve of [`roc_curves`].
+#[derive(Debug, Clone)]
 pub struct RocSeries<'a> {
     /// Legend text: the feature name or the whole set.
     pub label: &'a str,

@@ -1,8 +1,10 @@
 //! `report.txt` and the console summary: aligned plain-text tables, with
 //! ANSI colour only when the caller says the output is a terminal.
 
-use super::format::{self, FEATURE_HEADERS, PAIR_HEADERS, TOP_PAIRS};
-use super::{Flag, ProtectedResult, Renderer, Report, WholeSet};
+use super::Flag;
+use super::page::{
+    Backend, CellStyle, Detail, KeyValues, Page, Role, Row, Section, Table, Tone, verdict_tone,
+};
 
 /// Plain-text renderer; `colour` adds ANSI styles (decide it with
 /// `std::io::IsTerminal` on the destination stream).
@@ -19,10 +21,8 @@ const WRAP_WIDTH: usize = 78;
 enum Style {
     Heading,
     Headline,
-    Proxy,
-    Review,
-    Clear,
     Muted,
+    Tone(Tone),
 }
 
 impl Style {
@@ -30,18 +30,19 @@ impl Style {
         match self {
             Self::Heading => "\x1b[1;38;5;75m",
             Self::Headline => "\x1b[1m",
-            Self::Proxy => "\x1b[1;38;5;203m",
-            Self::Review => "\x1b[38;5;179m",
-            Self::Clear => "\x1b[38;5;108m",
             Self::Muted => "\x1b[2m",
+            Self::Tone(Tone::Alarm) => "\x1b[1;38;5;203m",
+            Self::Tone(Tone::Caution) => "\x1b[38;5;179m",
+            Self::Tone(Tone::Calm) => "\x1b[38;5;108m",
         }
     }
 
-    fn for_flag(flag: Flag) -> Self {
-        match flag {
-            Flag::Proxy => Self::Proxy,
-            Flag::Review => Self::Review,
-            Flag::Clear => Self::Clear,
+    /// The colour of a cell, if its style has one.
+    fn of_cell(style: CellStyle) -> Option<Self> {
+        match style {
+            CellStyle::Verdict(flag) => Some(Self::Tone(verdict_tone(flag))),
+            CellStyle::Toned(tone) => Some(Self::Tone(tone)),
+            _ => None,
         }
     }
 }
@@ -58,50 +59,55 @@ impl TerminalRenderer {
         }
     }
 
-    fn heading(&self, out: &mut String, text: &str) {
-        out.push('\n');
-        out.push_str(&self.paint(Style::Heading, text));
-        out.push('\n');
+    /// A heading line after a blank line, with its verdict if any.
+    fn heading(&self, text: &str, verdict: Option<Flag>) -> String {
+        let verdict = verdict
+            .map(|flag| {
+                let word = self.paint(Style::Tone(verdict_tone(flag)), flag.as_str());
+                format!(" ({word})")
+            })
+            .unwrap_or_default();
+        format!("\n{}{verdict}\n", self.paint(Style::Heading, text))
     }
 
-    /// Columns padded to their widest cell; `numeric` columns right-aligned
-    /// so decimals line up; the cell in `flag_column` coloured by its flag.
-    fn table(
-        &self,
-        headers: &[&str],
-        rows: &[Vec<String>],
-        numeric: &[usize],
-        flag_column: Option<usize>,
-    ) -> String {
-        let widths: Vec<usize> = (0..headers.len())
+    /// Columns padded to their widest cell, numeric columns right-aligned so
+    /// decimals line up, verdicts and toned cells coloured; rows outside the
+    /// summary left out, and the table with them when none is left.
+    fn aligned(&self, table: &Table) -> String {
+        let rows: Vec<&Row> = table
+            .rows
+            .iter()
+            .filter(|r| r.detail == Detail::Summary)
+            .collect();
+        if rows.is_empty() {
+            return String::new();
+        }
+        let widths: Vec<usize> = (0..table.columns.len())
             .map(|c| {
                 rows.iter()
-                    .map(|r| r[c].chars().count())
-                    .chain(std::iter::once(headers[c].chars().count()))
+                    .map(|r| r.cells[c].text.chars().count())
+                    .chain(std::iter::once(table.columns[c].title.chars().count()))
                     .max()
                     .unwrap_or(0)
             })
             .collect();
-        let align = |c: usize, cell: &str, width: usize| pad(cell, width, numeric.contains(&c));
-        let header = headers
+        let align = |c: usize, text: &str| pad(text, widths[c], table.columns[c].numeric);
+        let header = table
+            .columns
             .iter()
-            .zip(&widths)
             .enumerate()
-            .map(|(c, (h, &w))| align(c, h, w))
+            .map(|(c, column)| align(c, &column.title))
             .collect::<Vec<_>>()
             .join("  ");
         let mut out = format!("  {}\n", self.paint(Style::Muted, header.trim_end()));
         for row in rows {
             let line = row
+                .cells
                 .iter()
-                .zip(&widths)
                 .enumerate()
-                .map(|(c, (cell, &width))| {
-                    let padded = align(c, cell, width);
-                    match flag_column
-                        .filter(|&f| f == c)
-                        .and_then(|_| flag_style(cell))
-                    {
+                .map(|(c, cell)| {
+                    let padded = align(c, &cell.text);
+                    match Style::of_cell(cell.style) {
                         Some(style) => self.paint(style, &padded),
                         None => padded,
                     }
@@ -112,146 +118,66 @@ impl TerminalRenderer {
         }
         out
     }
+}
 
-    fn protected_section(&self, out: &mut String, result: &ProtectedResult, report: &Report) {
-        let positive = result
-            .positive
-            .as_deref()
-            .map(|p| format!(", positive class: {p}"))
-            .unwrap_or_default();
-        self.heading(
-            out,
-            &format!(
-                "Protected attribute: {} ({}{positive})",
-                result.protected, result.kind
-            ),
-        );
-        out.push_str(&self.paint(Style::Headline, &wrap(&result.headline, "  ")));
-        out.push('\n');
-        self.features_table(out, result);
-        self.pairs_table(out, result);
-        if let Some(whole) = &result.whole_set {
-            self.whole_set(out, whole, report.settings.target_auc);
+impl Backend for TerminalRenderer {
+    const FILE_NAME: &'static str = "report.txt";
+
+    /// Footnotes explain marks the summary does not draw; they are left out.
+    fn paragraph(&self, role: Role, text: &str) -> String {
+        let wrapped = wrap(text, "  ");
+        match role {
+            Role::Headline => self.paint(Style::Headline, &wrapped) + "\n",
+            Role::Footnote => String::new(),
+            Role::Body | Role::Meta => wrapped + "\n",
         }
     }
 
-    fn features_table(&self, out: &mut String, result: &ProtectedResult) {
-        self.heading(out, "Features ranked by AUC");
-        let rows: Vec<Vec<String>> = format::ranked_features(result)
-            .into_iter()
-            .map(|f| format::feature_cells(f).to_vec())
-            .collect();
-        out.push_str(&self.table(&FEATURE_HEADERS, &rows, &[2, 3, 4], Some(5)));
-    }
-
-    fn pairs_table(&self, out: &mut String, result: &ProtectedResult) {
-        if result.pairs.is_empty() {
-            return;
-        }
-        let top = format::top_pairs(result, TOP_PAIRS);
-        self.heading(
-            out,
-            &format!(
-                "Pairs with the largest gain (top {} of {})",
-                top.len(),
-                result.pairs.len()
-            ),
-        );
-        let rows: Vec<Vec<String>> = top
-            .into_iter()
-            .map(|p| format::pair_cells(p).to_vec())
-            .collect();
-        out.push_str(&self.table(&PAIR_HEADERS, &rows, &[1, 2], Some(3)));
-    }
-
-    fn whole_set(&self, out: &mut String, whole: &WholeSet, target_auc: f64) {
-        self.heading(out, "Whole feature set");
-        out.push_str(&format!(
-            "  {} surrogate on {} features: AUC {}, balanced error rate {:.3}\n",
-            whole.surrogate,
-            whole.features_used,
-            format::auc_interval(Some(whole.auc), Some(whole.auc_low), Some(whole.auc_high)),
-            whole.ber
-        ));
-        self.heading(out, &format!("Removal plan (target AUC {target_auc:.2})"));
-        let rows: Vec<Vec<String>> = whole
-            .removal_plan
+    fn key_values(&self, kv: &KeyValues) -> String {
+        kv.rows
             .iter()
-            .enumerate()
-            .map(|(i, step)| {
-                vec![
-                    (i + 1).to_string(),
-                    step.remove.clone(),
-                    format::auc_interval(
-                        Some(step.auc_after),
-                        Some(step.auc_low),
-                        Some(step.auc_high),
-                    ),
-                ]
-            })
-            .collect();
-        if !rows.is_empty() {
-            out.push_str(&self.table(
-                &["step", "remove", "AUC after [95% CI]"],
-                &rows,
-                &[0, 2],
-                None,
-            ));
-        }
-        out.push_str(&wrap(&format::removal_outcome(whole, target_auc), "  "));
-        out.push('\n');
+            .map(|(key, value)| format!("  {key}: {}\n", value.text))
+            .collect()
     }
 
-    fn trailer(&self, out: &mut String, report: &Report) {
-        if !report.skipped_columns.is_empty() {
-            self.heading(out, "Skipped columns");
-            for column in &report.skipped_columns {
-                out.push_str(&format!("  {}: {}\n", column.name, column.reason));
-            }
-        }
-        if !report.notes.is_empty() {
-            self.heading(out, "Notes");
-            for note in &report.notes {
-                // A hanging indent: continuation lines align with the text, not the dash.
-                out.push_str("  - ");
-                out.push_str(wrap(note, "    ").trim_start());
-                out.push('\n');
-            }
-        }
-        self.heading(out, "Caution");
-        out.push_str(&wrap(&report.caution, "  "));
-        out.push('\n');
-    }
-}
-
-impl Renderer for TerminalRenderer {
-    fn file_name(&self) -> &'static str {
-        "report.txt"
+    fn table(&self, table: &Table) -> String {
+        self.aligned(table)
     }
 
-    fn render(&self, report: &Report) -> String {
-        let d = &report.dataset;
-        let mut out = self.paint(
-            Style::Heading,
-            &format!(
-                "{} {}: leakage screen of {} ({} of {} rows used)",
-                report.tool.name, report.tool.version, d.source, d.rows_used, d.rows
-            ),
-        );
-        out.push('\n');
-        for result in &report.results {
-            self.protected_section(&mut out, result, report);
-        }
-        self.trailer(&mut out, report);
-        out
+    /// A hanging indent: continuation lines align with the text, not the dash.
+    fn list(&self, items: &[String]) -> String {
+        items
+            .iter()
+            .map(|item| format!("  - {}\n", wrap(item, "    ").trim_start()))
+            .collect()
     }
-}
 
-fn flag_style(cell: &str) -> Option<Style> {
-    [Flag::Proxy, Flag::Review, Flag::Clear]
-        .into_iter()
-        .find(|f| f.as_str() == cell)
-        .map(Style::for_flag)
+    fn callout(&self, label: &str, text: &str) -> String {
+        self.heading(label, None) + &wrap(text, "  ") + "\n"
+    }
+
+    /// Full-detail sections are left out of the summary.
+    fn section(&self, section: &Section, _level: usize, body: &str) -> String {
+        match &section.heading {
+            _ if section.detail == Detail::Full => String::new(),
+            Some(heading) => self.heading(&heading.text, heading.verdict) + body,
+            None => format!("\n{body}"),
+        }
+    }
+
+    /// The title, the sections, then the lead blocks (the caution), where a
+    /// console leaves them in view.
+    fn document(&self, page: &Page, lead: &str, sections: &str) -> String {
+        let subtitle = page
+            .subtitle
+            .as_ref()
+            .map(|s| format!("{s}\n"))
+            .unwrap_or_default();
+        format!(
+            "{}\n{subtitle}{sections}{lead}",
+            self.paint(Style::Heading, &page.title)
+        )
+    }
 }
 
 fn pad(cell: &str, width: usize, right: bool) -> String {
@@ -288,6 +214,7 @@ fn wrap(text: &str, indent: &str) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::report::Renderer;
     use crate::report::sample::{AWKWARD_NAME, sample_report};
 
     fn render(colour: bool) -> String {
@@ -302,7 +229,7 @@ mod tests {
     #[test]
     fn coloured_output_styles_the_flags() {
         let text = render(true);
-        assert!(text.contains(&format!("{}proxy", Style::Proxy.code())));
+        assert!(text.contains(&format!("{}proxy", Style::Tone(Tone::Alarm).code())));
         assert!(text.contains(RESET));
     }
 

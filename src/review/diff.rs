@@ -1,12 +1,18 @@
 //! `diff`: what changed between two reports, and whether the change should
-//! stop a pipeline. Renderers here format the comparison; the only statistic
-//! is the z-test of two independent AUCs.
+//! stop a pipeline. [`ReportDiff::page`] lays the comparison out for the
+//! shared backends; the only statistic is the z-test of two independent AUCs.
 
+use crate::report::format;
+use crate::report::layout::names_or_none;
+use crate::report::markdown::MarkdownRenderer;
+use crate::report::page::{
+    Backend, Block, Cell, CellStyle, Column, Detail, Page, Role, Row, Section, Table, Tone,
+};
+use crate::report::terminal::TerminalRenderer;
 use crate::report::{FeatureResult, Flag, ProtectedResult, Report, SCHEMA_VERSION};
 use crate::stats::two_sided_p_value;
 use serde::Serialize;
 use std::collections::HashMap;
-use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use thiserror::Error;
 
@@ -554,219 +560,226 @@ fn flag_label(flag: Option<Flag>) -> &'static str {
     flag.map_or("absent", Flag::as_str)
 }
 
-fn fmt_opt(value: Option<f64>, decimals: usize) -> String {
-    value.map_or_else(|| "n/a".to_string(), |v| format!("{v:.decimals$}"))
+/// A verdict cell, or `absent` for a feature missing from one report.
+fn flag_cell(flag: Option<Flag>) -> Cell {
+    flag.map_or_else(|| Cell::plain(flag_label(None)), Cell::verdict)
 }
 
-fn fmt_signed(value: Option<f64>) -> String {
-    value.map_or_else(|| "n/a".to_string(), |v| format!("{v:+.3}"))
+fn signed_or_missing(value: Option<f64>) -> String {
+    value.map_or_else(|| format::NOT_COMPUTED.to_owned(), |v| format::signed(v, 3))
 }
 
 /// p-values below 0.0001 print as `<0.0001` rather than a misleading zero.
-fn fmt_p(p: Option<f64>) -> String {
+fn p_text(p: Option<f64>) -> String {
     match p {
         Some(p) if p < 1e-4 => "<0.0001".to_string(),
-        other => fmt_opt(other, 4),
+        other => format::fixed(other, 4),
     }
 }
 
 fn auc_change_summary(change: &AucChange) -> String {
     format!(
         "{} → {}, change {}, z = {}, p = {}",
-        fmt_opt(change.old_auc, 3),
-        fmt_opt(change.new_auc, 3),
-        fmt_signed(change.change),
-        fmt_opt(change.z, 2),
-        fmt_p(change.p_value)
+        format::fixed(change.old_auc, 3),
+        format::fixed(change.new_auc, 3),
+        signed_or_missing(change.change),
+        format::fixed(change.z, 2),
+        p_text(change.p_value)
     )
 }
 
-/// Wraps `text` in an ANSI colour code when `colour` is on.
-fn paint(text: &str, code: &str, colour: bool) -> String {
-    if colour {
-        format!("\x1b[{code}m{text}\x1b[0m")
-    } else {
-        text.to_string()
+fn yes_no(value: bool) -> &'static str {
+    if value { "yes" } else { "no" }
+}
+
+/// Rows that show the summary: significant AUC changes, the whole set, changed context.
+fn summary_if(shown: bool) -> Detail {
+    if shown { Detail::Summary } else { Detail::Full }
+}
+
+impl ReportDiff {
+    /// The comparison as a page: the gate and the warnings first, then the
+    /// context, then each protected attribute.
+    #[must_use]
+    pub fn page(&self) -> Page<'static> {
+        let reasons = self.gate_reasons();
+        let gate = if reasons.is_empty() {
+            "Gate: passed."
+        } else {
+            "Gate: FAILED."
+        };
+        let mut gate_blocks = vec![Block::paragraph(Role::Headline, gate)];
+        if !reasons.is_empty() {
+            gate_blocks.push(Block::List(reasons));
+        }
+        gate_blocks.extend(self.warnings.iter().map(|w| Block::Callout {
+            label: "Warning",
+            text: w.clone(),
+        }));
+        let mut sections = vec![Section::untitled(gate_blocks), self.context_section()];
+        sections.extend(self.protected.iter().map(|p| p.section(self.alpha)));
+        Page {
+            title: "Report comparison".to_owned(),
+            subtitle: None,
+            lead: Vec::new(),
+            sections,
+        }
+    }
+
+    fn context_section(&self) -> Section<'static> {
+        let rows = self
+            .context
+            .iter()
+            .map(|item| Row {
+                cells: vec![
+                    Cell::plain(&item.field),
+                    Cell::plain(&item.old),
+                    Cell::plain(&item.new),
+                    if item.changed {
+                        Cell::styled(yes_no(true), CellStyle::Toned(Tone::Caution))
+                    } else {
+                        Cell::plain(yes_no(false))
+                    },
+                ],
+                detail: summary_if(item.changed),
+            })
+            .collect();
+        let table = Table {
+            name: "context",
+            columns: vec![
+                Column::text("field"),
+                Column::text("old"),
+                Column::text("new"),
+                Column::text("changed"),
+            ],
+            rows,
+        };
+        let attributes = format!(
+            "Protected attributes added: {}. Removed: {}.",
+            names_or_none(&self.protected_added),
+            names_or_none(&self.protected_removed)
+        );
+        Section::new(
+            "Context",
+            vec![
+                Block::Table(table),
+                Block::paragraph(Role::Body, attributes),
+            ],
+        )
     }
 }
 
-const RED: &str = "31";
-const GREEN: &str = "32";
-const YELLOW: &str = "33";
-const BOLD: &str = "1";
+impl ProtectedDiff {
+    fn section(&self, alpha: f64) -> Section<'static> {
+        let status = format!("{:?}", self.status).to_lowercase();
+        let mut blocks = vec![Block::List(vec![
+            format!("Features added: {}", names_or_none(&self.features_added)),
+            format!(
+                "Features removed: {}",
+                names_or_none(&self.features_removed)
+            ),
+        ])];
+        if !self.flag_changes.is_empty() {
+            blocks.push(Block::Table(self.flag_table()));
+        }
+        if !self.auc_changes.is_empty() || self.whole_set.is_some() {
+            let significant = self.auc_changes.iter().filter(|c| c.significant).count();
+            blocks.push(Block::paragraph(
+                Role::Body,
+                format!(
+                    "AUC changes, two-sided z-test at α = {alpha} (independent samples): \
+                     {significant} of {} significant.",
+                    self.auc_changes.len()
+                ),
+            ));
+            blocks.push(Block::Table(self.auc_table()));
+        }
+        Section::new(format!("{} ({status})", self.protected), blocks)
+    }
 
-fn list_or_none(names: &[String]) -> String {
-    if names.is_empty() {
-        "none".to_string()
-    } else {
-        names.join(", ")
+    fn flag_table(&self) -> Table {
+        let rows = self
+            .flag_changes
+            .iter()
+            .map(|c| {
+                let tone = if c.is_new_proxy() {
+                    Tone::Alarm
+                } else {
+                    Tone::Caution
+                };
+                Row::from(vec![
+                    Cell::styled(&c.feature, CellStyle::Toned(tone)),
+                    flag_cell(c.old),
+                    flag_cell(c.new),
+                    Cell::plain(yes_no(c.accepted)),
+                ])
+            })
+            .collect();
+        Table {
+            name: "flag-changes",
+            columns: vec![
+                Column::text("feature"),
+                Column::text("old flag"),
+                Column::text("new flag"),
+                Column::text("accepted"),
+            ],
+            rows,
+        }
+    }
+
+    fn auc_table(&self) -> Table {
+        let whole = self.whole_set.iter().map(|c| (c, Detail::Summary));
+        let rows = self
+            .auc_changes
+            .iter()
+            .map(|c| (c, summary_if(c.significant)))
+            .chain(whole)
+            .map(|(c, detail)| {
+                let name = if !c.significant {
+                    Cell::plain(&c.name)
+                } else if c.rose_significantly() {
+                    Cell::styled(&c.name, CellStyle::Toned(Tone::Alarm))
+                } else {
+                    Cell::styled(&c.name, CellStyle::Toned(Tone::Calm))
+                };
+                Row {
+                    cells: vec![
+                        name,
+                        Cell::plain(format::fixed(c.old_auc, 3)),
+                        Cell::plain(format::fixed(c.new_auc, 3)),
+                        Cell::plain(signed_or_missing(c.change)),
+                        Cell::plain(format::fixed(c.z, 2)),
+                        Cell::plain(p_text(c.p_value)),
+                        Cell::plain(yes_no(c.significant)),
+                    ],
+                    detail,
+                }
+            })
+            .collect();
+        Table {
+            name: "auc-changes",
+            columns: vec![
+                Column::text("feature"),
+                Column::numeric("old AUC"),
+                Column::numeric("new AUC"),
+                Column::numeric("change"),
+                Column::numeric("z"),
+                Column::numeric("p"),
+                Column::text("significant"),
+            ],
+            rows,
+        }
     }
 }
 
 /// Terminal rendering of a diff; `colour` adds ANSI colours for a TTY.
 #[must_use]
 pub fn render_diff_text(diff: &ReportDiff, colour: bool) -> String {
-    let mut out = String::new();
-    let _ = writeln!(out, "{}", paint("Report comparison", BOLD, colour));
-    for item in diff.context.iter().filter(|c| c.changed) {
-        let _ = writeln!(out, "  {}: {} → {}", item.field, item.old, item.new);
-    }
-    for warning in &diff.warnings {
-        let _ = writeln!(
-            out,
-            "{}",
-            paint(&format!("warning: {warning}"), YELLOW, colour)
-        );
-    }
-    let _ = writeln!(
-        out,
-        "protected attributes added: {}",
-        list_or_none(&diff.protected_added)
-    );
-    let _ = writeln!(
-        out,
-        "protected attributes removed: {}",
-        list_or_none(&diff.protected_removed)
-    );
-    for p in &diff.protected {
-        render_protected_text(&mut out, p, diff.alpha, colour);
-    }
-    render_gate_text(&mut out, &diff.gate_reasons(), colour);
-    out
-}
-
-fn render_protected_text(out: &mut String, p: &ProtectedDiff, alpha: f64, colour: bool) {
-    let heading = format!("\n{} ({:?})", p.protected, p.status).to_lowercase();
-    let _ = writeln!(out, "{}", paint(&heading, BOLD, colour));
-    let _ = writeln!(out, "  features added: {}", list_or_none(&p.features_added));
-    let _ = writeln!(
-        out,
-        "  features removed: {}",
-        list_or_none(&p.features_removed)
-    );
-    for change in &p.flag_changes {
-        let line = format!(
-            "  flag {}: {} → {}{}",
-            change.feature,
-            flag_label(change.old),
-            flag_label(change.new),
-            if change.accepted { " (accepted)" } else { "" }
-        );
-        let code = if change.is_new_proxy() { RED } else { YELLOW };
-        let _ = writeln!(out, "{}", paint(&line, code, colour));
-    }
-    let significant: Vec<&AucChange> = p.auc_changes.iter().filter(|c| c.significant).collect();
-    let _ = writeln!(
-        out,
-        "  AUC changes significant at {alpha}: {} of {}",
-        significant.len(),
-        p.auc_changes.len()
-    );
-    for change in significant.iter().copied().chain(&p.whole_set) {
-        let line = format!("  {}: {}", change.name, auc_change_summary(change));
-        let code = if change.rose_significantly() {
-            RED
-        } else {
-            GREEN
-        };
-        let _ = writeln!(out, "{}", paint(&line, code, colour && change.significant));
-    }
-}
-
-fn render_gate_text(out: &mut String, reasons: &[String], colour: bool) {
-    if reasons.is_empty() {
-        let _ = writeln!(out, "\n{}", paint("gate: passed", GREEN, colour));
-        return;
-    }
-    let _ = writeln!(out, "\n{}", paint("gate: FAILED", RED, colour));
-    for reason in reasons {
-        let _ = writeln!(out, "  - {reason}");
-    }
+    TerminalRenderer { colour }.render_page(&diff.page())
 }
 
 /// Markdown rendering of a diff, for a review ticket or a pull request.
 #[must_use]
 pub fn render_diff_markdown(diff: &ReportDiff) -> String {
-    let mut out = String::from("# Report comparison\n\n");
-    render_gate_markdown(&mut out, &diff.gate_reasons());
-    for warning in &diff.warnings {
-        let _ = writeln!(out, "> **Warning:** {warning}\n");
-    }
-    out.push_str("## Context\n\n| field | old | new |\n|---|---|---|\n");
-    for item in &diff.context {
-        let mark = if item.changed { " **(changed)**" } else { "" };
-        let _ = writeln!(
-            out,
-            "| {} | {} | {}{mark} |",
-            item.field, item.old, item.new
-        );
-    }
-    let _ = writeln!(
-        out,
-        "\nProtected attributes added: {}. Removed: {}.",
-        list_or_none(&diff.protected_added),
-        list_or_none(&diff.protected_removed)
-    );
-    for p in &diff.protected {
-        render_protected_markdown(&mut out, p, diff.alpha);
-    }
-    out
-}
-
-fn render_gate_markdown(out: &mut String, reasons: &[String]) {
-    if reasons.is_empty() {
-        out.push_str("**Gate: passed.**\n\n");
-        return;
-    }
-    out.push_str("**Gate: FAILED.**\n\n");
-    for reason in reasons {
-        let _ = writeln!(out, "- {reason}");
-    }
-    out.push('\n');
-}
-
-fn render_protected_markdown(out: &mut String, p: &ProtectedDiff, alpha: f64) {
-    let status = format!("{:?}", p.status).to_lowercase();
-    let _ = writeln!(out, "\n## `{}` ({status})\n", p.protected);
-    let _ = writeln!(out, "- Features added: {}", list_or_none(&p.features_added));
-    let _ = writeln!(
-        out,
-        "- Features removed: {}",
-        list_or_none(&p.features_removed)
-    );
-    if !p.flag_changes.is_empty() {
-        out.push_str("\n| feature | old flag | new flag | accepted |\n|---|---|---|---|\n");
-        for c in &p.flag_changes {
-            let _ = writeln!(
-                out,
-                "| {} | {} | {} | {} |",
-                c.feature,
-                flag_label(c.old),
-                flag_label(c.new),
-                if c.accepted { "yes" } else { "no" }
-            );
-        }
-    }
-    if p.auc_changes.is_empty() && p.whole_set.is_none() {
-        return;
-    }
-    let _ = writeln!(
-        out,
-        "\nAUC changes, two-sided z-test at α = {alpha} (independent samples):\n"
-    );
-    out.push_str("| feature | old AUC | new AUC | change | z | p | significant |\n");
-    out.push_str("|---|---|---|---|---|---|---|\n");
-    for c in p.auc_changes.iter().chain(&p.whole_set) {
-        let _ = writeln!(
-            out,
-            "| {} | {} | {} | {} | {} | {} | {} |",
-            c.name,
-            fmt_opt(c.old_auc, 3),
-            fmt_opt(c.new_auc, 3),
-            fmt_signed(c.change),
-            fmt_opt(c.z, 2),
-            fmt_p(c.p_value),
-            if c.significant { "yes" } else { "no" }
-        );
-    }
+    MarkdownRenderer.render_page(&diff.page())
 }

@@ -13,7 +13,7 @@ mod verdict;
 mod whole;
 
 pub use progress::{Progress, Silent};
-pub use verdict::{flag_for, gate_failures};
+pub use verdict::{flag_for, pair_flag};
 
 use crate::data::{EncodedTable, ProtectedAttribute};
 use crate::report::{LevelCount, ProtectedResult, Thresholds};

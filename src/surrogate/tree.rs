@@ -587,7 +587,7 @@ mod tests {
     use crate::data::folds::stratified_folds;
     use crate::stats::auc::auc_from_scores;
     use crate::surrogate::cross_fit;
-    use crate::surrogate::testing::{assert_probability_rows, folded, rounded, toy};
+    use crate::surrogate::testing::{folded, rounded, toy};
 
     #[test]
     fn separable_toy_gets_out_of_fold_auc_one() {
@@ -643,13 +643,35 @@ mod tests {
 
     #[test]
     fn leaf_probabilities_are_class_shares() {
+        // A classification tree predicts, in each leaf, the share of each
+        // class among the training rows that reach it (Breiman et al. 1984,
+        // "Classification and Regression Trees", §2.3; scikit-learn's
+        // `DecisionTreeClassifier.predict_proba`). Rows reaching one leaf get
+        // one prediction, so grouping the training rows by their prediction
+        // and counting their classes must give back that prediction; two
+        // leaves with equal shares pool into the same shares.
         let (columns, target) = toy(3_000, 3, 2);
         let refs: Vec<&EncodedColumn> = columns.iter().collect();
         let train: Vec<usize> = (0..2_000).collect();
-        let rows: Vec<usize> = (2_000..3_000).collect();
         let model = TreeSurrogate::default()
             .fit(&refs, &target, 3, &train)
             .unwrap();
-        assert_probability_rows(&model.predict_proba(&refs, &rows), 3);
+        let proba = model.predict_proba(&refs, &train);
+        let mut leaves: std::collections::BTreeMap<Vec<u64>, [f64; 3]> = Default::default();
+        for (&row, p) in train.iter().zip(proba.chunks_exact(3)) {
+            let key = p.iter().map(|v| v.to_bits()).collect();
+            leaves.entry(key).or_default()[target[row] as usize] += 1.0;
+        }
+        assert!(leaves.len() >= 4, "the tree should split: {leaves:?}");
+        for (key, counts) in &leaves {
+            let n: f64 = counts.iter().sum();
+            for (bits, count) in key.iter().zip(counts) {
+                let predicted = f64::from_bits(*bits);
+                assert!(
+                    (predicted - count / n).abs() < 1e-12,
+                    "{predicted} vs {count}/{n}"
+                );
+            }
+        }
     }
 }
