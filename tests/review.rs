@@ -114,6 +114,7 @@ fn report(results: Vec<ProtectedResult>, sha256: &str) -> Report {
         },
         results,
         skipped_columns: Vec::new(),
+        reading: telltale::report::ReadingInfo::default(),
         added_source: None,
         policy: None,
         notes: Vec::new(),

@@ -3,6 +3,7 @@
 
 use super::scan::ScanSettingsArgs;
 use crate::data::load::{FileFormat, LoadOptions};
+use crate::data::missing::MissingTokens;
 use crate::data::prepare::{EncodeOptions, Roles};
 use crate::pipeline::ScreenOptions;
 use crate::review::policy::Policy;
@@ -36,6 +37,22 @@ pub struct DataArgs {
     /// Read this column as categories even if it looks numeric (repeatable).
     #[arg(long, value_name = "COL")]
     pub categorical: Vec<String>,
+    /// Read this column as numbers (repeatable); fields that are not numbers become missing.
+    #[arg(long, value_name = "COL")]
+    pub numeric: Vec<String>,
+    /// Field texts read as missing, replacing the default set (comma-separated;
+    /// the README lists the default).
+    #[arg(
+        long,
+        value_name = "TOKEN,...",
+        value_delimiter = ',',
+        num_args = 0..,
+        conflicts_with = "no_na_values"
+    )]
+    pub na_values: Option<Vec<String>>,
+    /// Read no text as missing: only empty fields are missing values.
+    #[arg(long)]
+    pub no_na_values: bool,
     /// Band a numeric protected attribute, e.g. `age=18,25,35,50,65`.
     #[arg(long, value_name = "COL=EDGES")]
     pub band: Vec<String>,
@@ -112,6 +129,7 @@ impl DataArgs {
             exclude: self.exclude.clone(),
             features: self.features.clone(),
             categorical: self.categorical.clone(),
+            numeric: self.numeric.clone(),
             bands,
             intersect: self.intersect,
         })
@@ -122,7 +140,17 @@ impl DataArgs {
             bins: self.bins,
             max_classes: self.max_classes,
             sample: self.sample,
+            missing: self.missing_tokens(),
             ..EncodeOptions::default()
+        }
+    }
+
+    /// The field texts read as missing: the default set, `--na-values`, or none.
+    fn missing_tokens(&self) -> MissingTokens {
+        match (&self.na_values, self.no_na_values) {
+            (_, true) => MissingTokens::none(),
+            (Some(tokens), false) => MissingTokens::new(tokens.iter().cloned()),
+            (None, false) => MissingTokens::default(),
         }
     }
 

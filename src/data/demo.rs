@@ -89,7 +89,10 @@ fn area_name(index: usize) -> String {
     format!("{} {}", TOWNS[index / 5], index % 5 + 1)
 }
 
-fn draw(rng: &mut SplitMix64, weights: &[f64]) -> usize {
+/// Draws an index with probability proportional to `weights` (which sum to 1)
+/// by inverting their cumulative sum.
+#[must_use]
+pub fn draw(rng: &mut SplitMix64, weights: &[f64]) -> usize {
     let u = rng.next_f64();
     let mut cumulative = 0.0;
     for (i, w) in weights.iter().enumerate() {

@@ -10,10 +10,12 @@ pub mod folds;
 pub mod join;
 pub mod kinds;
 pub mod load;
+pub mod missing;
 pub mod prepare;
 pub mod sample;
 
 use serde::{Deserialize, Serialize};
+use std::collections::BTreeMap;
 
 /// How a column is interpreted; recorded in the report for every feature.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -25,9 +27,10 @@ pub enum FeatureKind {
     Boolean,
     /// Text levels; one code per level.
     Categorical,
-    /// Few distinct integers (e.g. a rating 1–6); one code per value.
+    /// Whole numbers with few enough distinct values (a rating, a branch
+    /// number): one code per value, raw values kept for their order.
     IntegerCoded,
-    /// Nearly every value distinct (a reference number); one code per value.
+    /// Text with nearly every value distinct (a reference number); one code per value.
     IdentifierLike,
 }
 
@@ -257,6 +260,28 @@ pub struct SkippedColumn {
     pub reason: String,
 }
 
+/// How one column's fields were read, for a column the report must mention:
+/// fields read as missing through a token, or a reading that involved a
+/// judgment (see [`kinds`]).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ColumnReading {
+    pub name: String,
+    /// The kind the column was read as (`None` for a protected attribute or a skipped column).
+    pub kind: Option<FeatureKind>,
+    /// Fields read as missing, per token, over every row of the file.
+    pub missing_tokens: BTreeMap<String, usize>,
+    /// How the column was read and why, when the rule had to judge.
+    pub note: Option<String>,
+}
+
+impl ColumnReading {
+    /// Whether there is anything to report.
+    #[must_use]
+    pub fn is_notable(&self) -> bool {
+        !self.missing_tokens.is_empty() || self.note.is_some()
+    }
+}
+
 /// The analysis table: every feature and protected attribute encoded once,
 /// restricted to rows where all protected attributes are present.
 #[derive(Debug, Clone)]
@@ -266,6 +291,11 @@ pub struct EncodedTable {
     pub features: Vec<EncodedColumn>,
     pub protected: Vec<ProtectedAttribute>,
     pub skipped: Vec<SkippedColumn>,
+    /// The missing-value tokens in effect (empty when turned off).
+    pub missing_tokens: Vec<String>,
+    /// Columns whose reading the report must mention, in file order of roles
+    /// (protected attributes first).
+    pub readings: Vec<ColumnReading>,
 }
 
 impl EncodedTable {

@@ -1,9 +1,15 @@
 //! Assigning roles to columns and encoding the analysis table once.
 
 use super::encode::{encode_integer_coded, encode_levels, encode_numeric, number_label};
-use super::kinds::{Distinct, KindRule, numeric_kind, parse_numbers, text_kind};
+use super::kinds::{
+    Distinct, KindRule, NumericProfile, collapsed_bins_note, numeric_kind, numeric_note,
+    parse_number, parse_numbers, parse_numbers_lenient, text_kind, text_note,
+};
+use super::missing::{MissingTokens, TokenCounts};
 use super::sample::stratified_sample;
-use super::{EncodedColumn, EncodedTable, FeatureKind, ProtectedAttribute, SkippedColumn};
+use super::{
+    ColumnReading, EncodedColumn, EncodedTable, FeatureKind, ProtectedAttribute, SkippedColumn,
+};
 use crate::error::InputError;
 use polars::prelude::{Column, DataFrame, DataType};
 use rayon::prelude::*;
@@ -20,6 +26,9 @@ pub struct Roles {
     pub features: Option<Vec<String>>,
     /// Columns read as categories even if they look numeric.
     pub categorical: Vec<String>,
+    /// Columns read as numbers (quantile bins and raw values); fields that
+    /// are not numbers become missing.
+    pub numeric: Vec<String>,
     /// Band edges for numeric protected attributes (e.g. age).
     pub bands: BTreeMap<String, Vec<f64>>,
     /// Adds the combination of all protected attributes as one more attribute.
@@ -36,6 +45,8 @@ pub struct EncodeOptions {
     pub sample: Option<usize>,
     pub seed: u64,
     pub kinds: KindRule,
+    /// Field texts read as missing.
+    pub missing: MissingTokens,
 }
 
 impl Default for EncodeOptions {
@@ -47,6 +58,7 @@ impl Default for EncodeOptions {
             sample: None,
             seed: 0,
             kinds: KindRule::default(),
+            missing: MissingTokens::default(),
         }
     }
 }
@@ -95,9 +107,15 @@ pub fn plan_columns(
         .chain(&roles.exclude)
         .chain(roles.features.iter().flatten())
         .chain(&roles.categorical)
+        .chain(&roles.numeric)
         .chain(roles.bands.keys());
     for name in named {
         known(name)?;
+    }
+    if let Some(both) = roles.numeric.iter().find(|c| roles.categorical.contains(c)) {
+        return Err(InputError::Usage(format!(
+            "column `{both}` is given to both --numeric and --categorical; choose one"
+        )));
     }
     if roles.protected.is_empty() {
         return Err(InputError::Usage(
@@ -111,11 +129,19 @@ pub fn plan_columns(
         .chain(&roles.exclude)
         .collect();
     let candidates = roles.features.as_deref().unwrap_or(columns);
-    let features = candidates
+    let features: Vec<String> = candidates
         .iter()
         .filter(|c| !not_feature.contains(c))
         .cloned()
         .collect();
+    if features.is_empty() {
+        return Err(InputError::Format {
+            path: path.to_path_buf(),
+            reason: "no feature column to scan: every column named is protected, the outcome \
+                     or excluded"
+                .into(),
+        });
+    }
     let excluded = columns
         .iter()
         .filter(|c| not_feature.contains(c) && !roles.protected.contains(c))
@@ -181,27 +207,32 @@ enum Values<'a> {
     Numbers(Vec<f64>),
 }
 
-fn values_of<'a>(path: &Path, column: &'a Column) -> Result<Values<'a>, InputError> {
+/// The values of `column`, with fields matching a missing-value token read as
+/// missing; also returns how many fields each token made missing.
+fn values_of<'a>(
+    path: &Path,
+    column: &'a Column,
+    missing: &MissingTokens,
+) -> Result<(Values<'a>, TokenCounts), InputError> {
     let bad = |reason: String| InputError::BadColumn {
         path: path.to_path_buf(),
         column: column.name().to_string(),
         reason,
     };
     match column.dtype() {
-        DataType::String => Ok(Values::Text(
-            column
-                .str()
-                .map_err(|e| bad(e.to_string()))?
-                .iter()
-                .collect(),
-        )),
+        DataType::String => {
+            let text = column.str().map_err(|e| bad(e.to_string()))?;
+            let (fields, tokens) = missing.apply(text.iter());
+            Ok((Values::Text(fields), tokens))
+        }
         dtype if dtype.is_primitive_numeric() => {
             let cast = column
                 .cast(&DataType::Float64)
                 .map_err(|e| bad(e.to_string()))?;
             let numbers = cast.f64().map_err(|e| bad(e.to_string()))?;
-            Ok(Values::Numbers(
-                numbers.iter().map(|v| v.unwrap_or(f64::NAN)).collect(),
+            Ok((
+                Values::Numbers(numbers.iter().map(|v| v.unwrap_or(f64::NAN)).collect()),
+                BTreeMap::new(),
             ))
         }
         other => Err(bad(format!(
@@ -240,11 +271,24 @@ pub fn encode_table(
 ) -> Result<EncodedTable, InputError> {
     let protected_frame = source.read(&plan.protected)?;
     let source_rows = protected_frame.height();
-    let labels: Vec<Vec<Option<String>>> = plan
-        .protected
-        .iter()
-        .map(|name| protected_labels(path, &protected_frame, name, roles.bands.get(name)))
-        .collect::<Result<_, _>>()?;
+    let mut readings = Vec::new();
+    let mut labels: Vec<Vec<Option<String>>> = Vec::new();
+    for name in &plan.protected {
+        let (column_labels, tokens) = protected_labels(
+            path,
+            &protected_frame,
+            name,
+            roles.bands.get(name),
+            &options.missing,
+        )?;
+        labels.push(column_labels);
+        readings.push(ColumnReading {
+            name: name.clone(),
+            kind: None,
+            missing_tokens: tokens,
+            note: None,
+        });
+    }
     drop(protected_frame);
     let mut kept: Vec<usize> = (0..source_rows)
         .filter(|&r| labels.iter().all(|l| l[r].is_some()))
@@ -272,7 +316,7 @@ pub fn encode_table(
         Some(kept.as_slice())
     };
     let batch = (BATCH_TEXT_BYTES / (source_rows.max(1) * TEXT_VALUE_BYTES)).max(2);
-    let mut encoded: Vec<Result<EncodedColumn, SkippedColumn>> = Vec::new();
+    let mut encoded: Vec<(Result<EncodedColumn, SkippedColumn>, ColumnReading)> = Vec::new();
     for names in plan.features.chunks(batch) {
         let frame = source.read(names)?;
         if frame.height() != source_rows {
@@ -305,21 +349,52 @@ pub fn encode_table(
             },
         })
         .collect();
-    for result in encoded {
+    for (result, reading) in encoded {
+        readings.push(reading);
         match result {
             Ok(column) => features.push(column),
             Err(skip) => skipped.push(skip),
         }
     }
+    if features.is_empty() {
+        return Err(no_usable_feature(path, &skipped));
+    }
+    readings.retain(ColumnReading::is_notable);
     Ok(EncodedTable {
         source_rows,
         features,
         protected,
         skipped,
+        missing_tokens: options.missing.tokens().to_vec(),
+        readings,
     })
 }
 
-/// Reads and encodes one feature of `frame`, keeping `rows` (all when `None`).
+/// The error for a table left with no feature: every candidate was skipped.
+fn no_usable_feature(path: &Path, skipped: &[SkippedColumn]) -> InputError {
+    let reasons: Vec<String> = skipped
+        .iter()
+        .map(|s| format!("`{}` {}", s.name, s.reason))
+        .collect();
+    InputError::Format {
+        path: path.to_path_buf(),
+        reason: format!("no usable feature column ({})", reasons.join("; ")),
+    }
+}
+
+/// How the user asked for a column to be read.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Forced {
+    /// By the kind rule.
+    No,
+    /// `--categorical`.
+    Categorical,
+    /// `--numeric`.
+    Numeric,
+}
+
+/// Reads and encodes one feature of `frame`, keeping `rows` (all when `None`);
+/// also says how it was read.
 fn encode_named(
     path: &Path,
     frame: &DataFrame,
@@ -327,19 +402,43 @@ fn encode_named(
     rows: Option<&[usize]>,
     roles: &Roles,
     options: &EncodeOptions,
-) -> Result<EncodedColumn, SkippedColumn> {
-    let skip = |reason: String| SkippedColumn {
+) -> (Result<EncodedColumn, SkippedColumn>, ColumnReading) {
+    let mut reading = ColumnReading {
         name: name.to_string(),
-        reason,
+        kind: None,
+        missing_tokens: TokenCounts::new(),
+        note: None,
     };
-    let column = frame.column(name).map_err(|e| skip(e.to_string()))?;
-    let values = values_of(path, column).map_err(|e| skip(e.to_string()))?;
+    let values = frame
+        .column(name)
+        .map_err(|e| e.to_string())
+        .and_then(|column| values_of(path, column, &options.missing).map_err(|e| e.to_string()));
+    let (values, tokens) = match values {
+        Ok(read) => read,
+        Err(reason) => {
+            let skip = SkippedColumn {
+                name: name.to_string(),
+                reason,
+            };
+            return (Err(skip), reading);
+        }
+    };
+    reading.missing_tokens = tokens;
     let values = match rows {
         Some(rows) => select(values, rows),
         None => values,
     };
-    let categorical = roles.categorical.iter().any(|c| c == name);
-    encode_feature(name, values, categorical, options)
+    let forced = if roles.categorical.iter().any(|c| c == name) {
+        Forced::Categorical
+    } else if roles.numeric.iter().any(|c| c == name) {
+        Forced::Numeric
+    } else {
+        Forced::No
+    };
+    let (result, note) = encode_feature(name, values, forced, options);
+    reading.kind = result.as_ref().ok().map(|c| c.kind);
+    reading.note = note;
+    (result, reading)
 }
 
 fn select<'a>(values: Values<'a>, rows: &[usize]) -> Values<'a> {
@@ -349,105 +448,155 @@ fn select<'a>(values: Values<'a>, rows: &[usize]) -> Values<'a> {
     }
 }
 
-/// Encodes one feature, or says why it is skipped (all missing, constant).
+/// Encodes one feature, or says why it is skipped (all missing, constant:
+/// one value on every row); also returns the note on a judged reading.
 fn encode_feature(
     name: &str,
     values: Values<'_>,
-    force_categorical: bool,
+    forced: Forced,
     options: &EncodeOptions,
-) -> Result<EncodedColumn, SkippedColumn> {
+) -> (Result<EncodedColumn, SkippedColumn>, Option<String>) {
     let skip = |reason: &str| SkippedColumn {
         name: name.to_string(),
         reason: reason.to_string(),
     };
-    let column = match values {
-        Values::Text(text) if force_categorical => {
-            encode_levels(name, FeatureKind::Categorical, text.iter().copied())
+    let (column, note) = match (values, forced) {
+        (Values::Text(text), Forced::Categorical) => (
+            encode_levels(name, FeatureKind::Categorical, text.iter().copied()),
+            None,
+        ),
+        (Values::Text(text), Forced::Numeric) => {
+            let (numbers, failed) = parse_numbers_lenient(text.iter().copied());
+            let note = (failed > 0).then(|| {
+                format!("--numeric: {failed} fields that are not numbers read as missing")
+            });
+            let (column, collapsed) = encode_binned(name, numbers, options);
+            let notes: Vec<String> = note.into_iter().chain(collapsed).collect();
+            (column, (!notes.is_empty()).then(|| notes.join("; ")))
         }
-        Values::Text(text) => match parse_numbers(text.iter().copied()) {
-            Some(numbers) => encode_numbers(name, numbers, Some(&text), options),
+        (Values::Text(text), Forced::No) => match parse_numbers(text.iter().copied()) {
+            Some(numbers) => encode_numbers(name, numbers, options),
             None => encode_text(name, &text, options),
         },
-        Values::Numbers(numbers) if force_categorical => {
+        (Values::Numbers(numbers), Forced::Categorical) => {
             let text: Vec<Option<String>> = numbers
                 .iter()
                 .map(|v| (!v.is_nan()).then(|| number_label(*v)))
                 .collect();
-            encode_levels(
+            let column = encode_levels(
                 name,
                 FeatureKind::Categorical,
                 text.iter().map(Option::as_deref),
-            )
+            );
+            (column, None)
         }
-        Values::Numbers(numbers) => encode_numbers(name, numbers, None, options),
+        (Values::Numbers(numbers), Forced::Numeric) => encode_binned(name, numbers, options),
+        (Values::Numbers(numbers), Forced::No) => encode_numbers(name, numbers, options),
     };
-    if column.missing_count == column.codes.len() {
+    let result = if column.missing_count == column.codes.len() {
         Err(skip("all values missing"))
     } else if column.n_levels <= 1 {
         Err(skip("constant (one value on every row)"))
     } else {
         Ok(column)
-    }
+    };
+    (result, note)
 }
 
-fn encode_text(name: &str, text: &[Option<&str>], options: &EncodeOptions) -> EncodedColumn {
+fn encode_text(
+    name: &str,
+    text: &[Option<&str>],
+    options: &EncodeOptions,
+) -> (EncodedColumn, Option<String>) {
     let column = encode_levels(name, FeatureKind::Categorical, text.iter().copied());
     let present = column.codes.len() - column.missing_count;
     let count = column.labels.len() - usize::from(column.missing_code.is_some());
-    let kind = text_kind(Distinct { count, present }, &options.kinds);
-    EncodedColumn { kind, ..column }
+    let distinct = Distinct { count, present };
+    let kind = text_kind(distinct, &options.kinds);
+    let mut rows_per_code = vec![0usize; column.labels.len()];
+    for &code in &column.codes {
+        rows_per_code[code as usize] += 1;
+    }
+    let not_numbers = (0..count)
+        .filter(|&code| parse_number(&column.labels[code]).is_none())
+        .map(|code| rows_per_code[code])
+        .sum();
+    (
+        EncodedColumn { kind, ..column },
+        text_note(kind, distinct, not_numbers),
+    )
 }
 
+/// Encodes a numeric column by the kind rule: boolean, integer-coded or binned.
 fn encode_numbers(
     name: &str,
     numbers: Vec<f64>,
-    text: Option<&[Option<&str>]>,
     options: &EncodeOptions,
-) -> EncodedColumn {
-    match numeric_kind(&numbers, &options.kinds) {
-        FeatureKind::Boolean => EncodedColumn {
-            kind: FeatureKind::Boolean,
-            ..encode_integer_coded(name, numbers)
-        },
-        FeatureKind::IntegerCoded => encode_integer_coded(name, numbers),
-        FeatureKind::IdentifierLike => {
-            let owned: Vec<Option<String>>;
-            let fields: Vec<Option<&str>> = match text {
-                Some(t) => t.to_vec(),
-                None => {
-                    owned = numbers
-                        .iter()
-                        .map(|v| (!v.is_nan()).then(|| number_label(*v)))
-                        .collect();
-                    owned.iter().map(Option::as_deref).collect()
-                }
-            };
-            encode_levels(name, FeatureKind::IdentifierLike, fields.into_iter())
+) -> (EncodedColumn, Option<String>) {
+    let profile = NumericProfile::of(&numbers);
+    let kind = numeric_kind(&profile, &options.kinds);
+    let note = numeric_note(&profile, kind, &options.kinds);
+    match kind {
+        FeatureKind::Boolean | FeatureKind::IntegerCoded => (
+            EncodedColumn {
+                kind,
+                ..encode_integer_coded(name, numbers)
+            },
+            note,
+        ),
+        _ => {
+            let (column, collapsed) = encode_binned(name, numbers, options);
+            (column, collapsed.or(note))
         }
-        _ => encode_numeric(name, numbers, options.bins),
     }
 }
 
+/// Quantile bins and raw values; when most rows share one value and the bins
+/// merge into one although the column has several values, one level per
+/// distinct value instead (with a note saying so).
+fn encode_binned(
+    name: &str,
+    numbers: Vec<f64>,
+    options: &EncodeOptions,
+) -> (EncodedColumn, Option<String>) {
+    let column = encode_numeric(name, numbers, options.bins);
+    let bins = column.n_levels - u32::from(column.missing_code.is_some());
+    let Some(raw) = column.raw.as_ref().filter(|_| bins < 2) else {
+        return (column, None);
+    };
+    let numbers: Vec<f64> = (0..column.codes.len()).map(|row| raw.value(row)).collect();
+    let distinct = NumericProfile::of(&numbers).distinct.count;
+    if distinct < 2 {
+        return (column, None);
+    }
+    let levels = EncodedColumn {
+        kind: FeatureKind::Numeric,
+        ..encode_integer_coded(name, numbers)
+    };
+    (levels, Some(collapsed_bins_note(distinct, options.bins)))
+}
+
 /// Text label per source row of a protected attribute (`None` = missing),
-/// banding numbers when band edges are given.
+/// banding numbers when band edges are given; also the missing-token counts.
 fn protected_labels(
     path: &Path,
     frame: &DataFrame,
     name: &str,
     bands: Option<&Vec<f64>>,
-) -> Result<Vec<Option<String>>, InputError> {
+    missing: &MissingTokens,
+) -> Result<(Vec<Option<String>>, TokenCounts), InputError> {
     let column = frame.column(name).map_err(|e| InputError::BadColumn {
         path: path.to_path_buf(),
         column: name.to_string(),
         reason: e.to_string(),
     })?;
-    let values = values_of(path, column)?;
+    let (values, tokens) = values_of(path, column, missing)?;
     let bad = |reason: String| InputError::BadProtected {
         path: path.to_path_buf(),
         column: name.to_string(),
         reason,
     };
-    Ok(match (values, bands) {
+    let labels = match (values, bands) {
         (Values::Text(text), None) => text.iter().map(|v| v.map(str::to_string)).collect(),
         (Values::Numbers(numbers), None) => numbers
             .iter()
@@ -460,7 +609,8 @@ fn protected_labels(
             band_labels(&numbers, edges)
         }
         (Values::Numbers(numbers), Some(edges)) => band_labels(&numbers, edges),
-    })
+    };
+    Ok((labels, tokens))
 }
 
 /// Band label of each value for ascending edges `e_0 < … < e_m`:

@@ -26,6 +26,10 @@ pub struct Report {
     /// Columns not scanned, with the reason (constant, all missing, excluded...).
     #[serde(default)]
     pub skipped_columns: Vec<SkippedColumnInfo>,
+    /// How the columns were read: the missing-value tokens in effect and every
+    /// column where a token was found or the reading was a judgment call.
+    #[serde(default)]
+    pub reading: ReadingInfo,
     /// What a new data source adds (`scan --add-source`), when given.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub added_source: Option<AddedSource>,
@@ -395,6 +399,27 @@ pub struct RemovalStep {
     pub auc_low: f64,
     /// Upper end of its 95% interval.
     pub auc_high: f64,
+}
+
+/// How the columns were read.
+#[derive(Debug, Clone, Default, Serialize, Deserialize, PartialEq)]
+pub struct ReadingInfo {
+    /// Field texts (besides empty fields) read as missing; empty when turned off.
+    pub missing_tokens: Vec<String>,
+    /// Columns whose reading the report states, protected attributes first.
+    pub columns: Vec<ColumnReadingInfo>,
+}
+
+/// How one column was read.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct ColumnReadingInfo {
+    pub name: String,
+    /// The kind it was read as; `null` for a protected attribute or a skipped column.
+    pub kind: Option<String>,
+    /// Fields read as missing, per token, over every row of the file.
+    pub missing_tokens: BTreeMap<String, usize>,
+    /// How it was read and why, when the reading was a judgment call.
+    pub note: Option<String>,
 }
 
 /// A column left out of the scan (`data::prepare::encode_table`).

@@ -281,6 +281,7 @@ pub fn sample_report() -> Report {
             name: "batch_id".into(),
             reason: "constant".into(),
         }],
+        reading: ReadingInfo::default(),
         added_source: Some(AddedSource {
             source: "bureau.parquet".into(),
             sha256: "41ab".repeat(16),

@@ -221,7 +221,7 @@ pub fn build_report(
 ) -> crate::report::Report {
     use crate::report::{Report, SCHEMA_VERSION, Settings, SkippedColumnInfo, ToolInfo};
     let results = scan(table, options, progress);
-    let mut notes = Vec::new();
+    let (reading, mut notes) = reading_info(table);
     if !options.whole_set {
         notes.push(
             "whole-set attack, drop-one ablation and removal plan were not run (--no-whole-set)"
@@ -298,6 +298,7 @@ pub fn build_report(
                 reason: s.reason.clone(),
             })
             .collect(),
+        reading,
         added_source: None,
         policy: None,
         notes,
@@ -329,4 +330,53 @@ pub fn added_source_effects(
             whole::added_features_effect(&inputs, &indices, &target)
         })
         .collect()
+}
+
+/// How the table's columns were read, for the report, and one note per
+/// judged reading plus one for the missing-value tokens found.
+fn reading_info(table: &EncodedTable) -> (crate::report::ReadingInfo, Vec<String>) {
+    use crate::report::{ColumnReadingInfo, ReadingInfo};
+    let columns: Vec<ColumnReadingInfo> = table
+        .readings
+        .iter()
+        .map(|r| ColumnReadingInfo {
+            name: r.name.clone(),
+            kind: r.kind.map(|k| k.as_str().to_string()),
+            missing_tokens: r.missing_tokens.clone(),
+            note: r.note.clone(),
+        })
+        .collect();
+    let mut notes: Vec<String> = columns
+        .iter()
+        .filter_map(|c| {
+            let note = c.note.as_ref()?;
+            Some(match &c.kind {
+                Some(kind) => format!("{} read as {kind}: {note}", c.name),
+                None => format!("{}: {note}", c.name),
+            })
+        })
+        .collect();
+    let tokens: Vec<String> = columns
+        .iter()
+        .filter(|c| !c.missing_tokens.is_empty())
+        .map(|c| {
+            let counts: Vec<String> = c
+                .missing_tokens
+                .iter()
+                .map(|(token, n)| format!("{token} ×{n}"))
+                .collect();
+            format!("{} ({})", c.name, counts.join(", "))
+        })
+        .collect();
+    if !tokens.is_empty() {
+        notes.push(format!(
+            "fields read as missing values (missing-value tokens; --na-values, --no-na-values): {}",
+            tokens.join("; ")
+        ));
+    }
+    let info = ReadingInfo {
+        missing_tokens: table.missing_tokens.clone(),
+        columns,
+    };
+    (info, notes)
 }
