@@ -58,6 +58,12 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         target_reached: false,
         ablation: true,
         ablation_rows: None,
+        joint_columns: Vec::new(),
+        refits: 0,
+        drop_one_rule: String::new(),
+        drop_one_screened: Vec::new(),
+        redundancy_groups: Vec::new(),
+        plan_rule: String::new(),
     }
 }
 

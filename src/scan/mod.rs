@@ -6,7 +6,9 @@
 mod composition;
 mod evaluate;
 pub mod explain;
+mod joints;
 mod pairs;
+mod plan;
 pub mod progress;
 mod singles;
 mod verdict;
@@ -111,8 +113,10 @@ fn scan_attribute(
     let whole_set = options
         .whole_set
         .then(|| {
-            let inputs = whole::AttackInputs::new(&table.features, &pairs);
-            whole::scan_whole_set(&inputs, &target, options, progress)
+            let joints = joints::nested_joints(&table.features, &target, options);
+            let inputs = whole::AttackInputs::new(&table.features, joints);
+            let flagged = flagged_features(&table.features, &features);
+            whole::scan_whole_set(&inputs, &target, options, &flagged, progress)
         })
         .flatten();
     let headline = verdict::headline(
@@ -153,6 +157,24 @@ fn scan_attribute(
         pairs,
         whole_set,
     }
+}
+
+/// Indices of the features the single-feature scan flagged `proxy` or `review`.
+fn flagged_features(
+    columns: &[crate::data::EncodedColumn],
+    results: &[crate::report::FeatureResult],
+) -> Vec<usize> {
+    use crate::report::Flag;
+    columns
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| {
+            results
+                .iter()
+                .any(|r| r.name == c.name && matches!(r.flag, Flag::Proxy | Flag::Review))
+        })
+        .map(|(i, _)| i)
+        .collect()
 }
 
 /// Assembles the full report for a scanned table.
@@ -262,7 +284,8 @@ pub fn added_source_effects(
         .iter()
         .filter_map(|attribute| {
             let target = Target::new(attribute, options.folds, options.seed);
-            let inputs = whole::AttackInputs::new(&table.features, &[]);
+            let inputs =
+                whole::AttackInputs::new(&table.features, joints::FoldJoints::none(options.folds));
             whole::added_features_effect(&inputs, &indices, &target)
         })
         .collect()
