@@ -62,6 +62,8 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         refits: 0,
         drop_one_rule: String::new(),
         drop_one_screened: Vec::new(),
+        drop_one_screened_auc: None,
+        plan_check: None,
         redundancy_groups: Vec::new(),
         plan_rule: String::new(),
     }

@@ -242,6 +242,13 @@ pub struct WholeSet {
     /// Features the attacker used so little that drop-one did not refit them (see `drop_one_rule`).
     #[serde(default)]
     pub drop_one_screened: Vec<String>,
+    /// Whole-set AUC without every screened feature at once (the set drop-one and the plan refit from).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub drop_one_screened_auc: Option<AucInterval>,
+    /// Whole-set AUC of every feature except those the plan removes, refitted
+    /// at full width when the plan ran on a screened set.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub plan_check: Option<AucInterval>,
     /// Groups of features that rebuild each other, with what removing them together and alone does.
     #[serde(default)]
     pub redundancy_groups: Vec<RedundancyGroup>,

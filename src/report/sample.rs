@@ -176,6 +176,8 @@ fn whole_set() -> WholeSet {
         refits: 0,
         drop_one_rule: String::new(),
         drop_one_screened: Vec::new(),
+        drop_one_screened_auc: None,
+        plan_check: None,
         redundancy_groups: Vec::new(),
         plan_rule: String::new(),
     }

@@ -113,7 +113,7 @@ fn scan_attribute(
     let whole_set = options
         .whole_set
         .then(|| {
-            let joints = joints::nested_joints(&table.features, &target, options);
+            let joints = joints::nested_joints(&table.features, &target, options, progress);
             let inputs = whole::AttackInputs::new(&table.features, joints);
             let flagged = flagged_features(&table.features, &features);
             whole::scan_whole_set(&inputs, &target, options, &flagged, progress)

@@ -13,9 +13,9 @@
 use super::ScanOptions;
 use super::evaluate::{Evaluation, Target};
 use super::pairs::pairs_with;
-use super::whole::{Attack, AttackInputs, attack, without};
+use super::whole::{Attack, AttackInputs, WorkingSet, attack, without, working_set};
 use crate::data::EncodedColumn;
-use crate::report::{RedundancyGroup, RemovalStep};
+use crate::report::{AucInterval, RedundancyGroup, RemovalStep};
 use crate::stats::contingency::Contingency;
 use crate::stats::information::{entropy, miller_madow_mutual_information};
 use rayon::prelude::*;
@@ -37,12 +37,14 @@ pub struct PlanInputs<'a, 'b> {
     pub flagged: &'a [usize],
 }
 
-/// The plan's steps, whether it reached the target, and the groups it tested.
+/// The plan's steps, whether it reached the target, the groups it tested and
+/// the full-width check of its result.
 #[derive(Default)]
 pub struct Plan {
     pub steps: Vec<RemovalStep>,
     pub reached: bool,
     pub groups: Vec<RedundancyGroup>,
+    pub check: Option<AucInterval>,
 }
 
 /// The plan's rule as the report states it.
@@ -56,12 +58,17 @@ pub fn plan_rule(options: &ScanOptions) -> String {
          not candidates: removing them leaves the AUC unchanged. The step taken is the one \
          that lowers the AUC most per feature removed, and only if it lowers the AUC; otherwise \
          the plan stops. The target counts as reached when the upper bound of the 95% interval \
-         of the AUC after a step is below {:.2}.",
+         of the AUC after a step is below {:.2}. Steps refit on the screened set (see drop-one); \
+         the result is then refitted with every feature not removed, and when that check's \
+         upper bound is not below the target, the plan screens again from the check and goes on.",
         options.removal_candidates,
         REDUNDANCY * 100.0,
         options.target_auc
     )
 }
+
+/// Full-width checks at most, each followed by a new screen when it fails.
+const MAX_CHECKS: usize = 3;
 
 /// An evaluated removal: the measures after it and each feature's split gain.
 #[derive(Clone)]
@@ -91,45 +98,69 @@ fn below_target(evaluation: &Evaluation, target_auc: f64) -> bool {
 /// The plan's working state.
 struct Planner<'p, 'a, 'b> {
     plan: &'p PlanInputs<'a, 'b>,
+    /// Features the current attacker is fitted on (the screened set less the removals).
     remaining: Vec<usize>,
+    /// Features removed by the steps so far.
+    removed: Vec<usize>,
     current: Outcome,
-    /// Outcomes by the full set of removed features (sorted).
+    /// Whether `current` is exactly the attacker on every unremoved feature
+    /// (the features left out were never split on, and nothing was removed since).
+    exact: bool,
+    /// Outcomes by the (sorted) feature set fitted.
     tried: HashMap<Vec<usize>, Outcome>,
     redundancy: HashMap<(usize, usize), f64>,
 }
 
-/// Greedy plan starting from the full attack; `first_step` holds the drop-one
-/// refits already made (removing one feature from the full set).
+/// Greedy plan starting from the working set of the full attack; `first_step`
+/// holds the drop-one refits already made (the working set without one feature).
 pub fn removal_plan(
     plan: &PlanInputs<'_, '_>,
     full: &Attack,
+    working: WorkingSet,
     first_step: Vec<(usize, Attack)>,
     progress: &dyn super::Progress,
 ) -> Plan {
     let features = plan.inputs.features;
     let mut planner = Planner {
         plan,
-        remaining: (0..features.len()).collect(),
-        current: Outcome::of(full),
+        current: Outcome::of(working.baseline.as_ref().unwrap_or(full)),
         tried: first_step
             .iter()
-            .map(|(i, a)| (vec![*i], Outcome::of(a)))
+            .map(|(i, a)| (without(&working.features, &[*i]), Outcome::of(a)))
             .collect(),
+        exact: working.baseline.is_none(),
+        remaining: working.features,
+        removed: Vec::new(),
         redundancy: HashMap::new(),
     };
-    let mut result = Plan {
-        reached: below_target(&full.evaluation, plan.options.target_auc),
-        ..Plan::default()
-    };
+    let mut result = Plan::default();
     progress.stage(
         &format!("removal plan: {}", plan.target.attribute.name),
         features.len() as u64,
     );
-    while !result.reached && !planner.remaining.is_empty() {
+    let mut checks = 0;
+    loop {
+        if below_target(&planner.current.evaluation, plan.options.target_auc) {
+            if planner.exact || planner.remaining.len() + planner.removed.len() == features.len() {
+                result.reached = true;
+                break;
+            }
+            let Some(check) = planner.check() else { break };
+            result.check = Some(check.evaluation.interval());
+            if below_target(&check.evaluation, plan.options.target_auc) {
+                result.reached = true;
+                break;
+            }
+            checks += 1;
+            if checks == MAX_CHECKS {
+                break;
+            }
+            planner.rescreen(&check);
+            continue;
+        }
         let Some(step) = planner.step(&mut result.groups) else {
             break;
         };
-        result.reached = below_target(&planner.current.evaluation, plan.options.target_auc);
         result.steps.push(step);
         progress.advance(1);
     }
@@ -137,12 +168,30 @@ pub fn removal_plan(
 }
 
 impl Planner<'_, '_, '_> {
-    fn removed(&self, also: &[usize]) -> Vec<usize> {
-        let mut removed: Vec<usize> = (0..self.plan.inputs.features.len())
-            .filter(|i| !self.remaining.contains(i) || also.contains(i))
-            .collect();
-        removed.sort_unstable();
-        removed
+    /// Every feature not removed, at full width.
+    fn unremoved(&self) -> Vec<usize> {
+        let all: Vec<usize> = (0..self.plan.inputs.features.len()).collect();
+        without(&all, &self.removed)
+    }
+
+    /// The attacker on every feature the plan has not removed.
+    fn check(&self) -> Option<Attack> {
+        attack(self.plan.inputs, &self.unremoved(), self.plan.target)
+    }
+
+    /// A new working set screened from a failed check.
+    fn rescreen(&mut self, check: &Attack) {
+        let subset = self.unremoved();
+        let working = working_set(
+            self.plan.inputs,
+            self.plan.target,
+            self.plan.flagged,
+            check,
+            &subset,
+        );
+        self.current = Outcome::of(working.baseline.as_ref().unwrap_or(check));
+        self.exact = working.baseline.is_none();
+        self.remaining = working.features;
     }
 
     /// Candidates: the current attacker's most-used features, flagged
@@ -236,11 +285,10 @@ impl Planner<'_, '_, '_> {
     /// The outcome of also removing `removal`: cached, chance when nothing is
     /// left, otherwise a refit.
     fn outcome(&self, removal: &[usize]) -> Option<Outcome> {
-        let removed = self.removed(removal);
-        if let Some(known) = self.tried.get(&removed) {
+        let left = without(&self.remaining, removal);
+        if let Some(known) = self.tried.get(&left) {
             return Some(known.clone());
         }
-        let left = without(&self.remaining, removal);
         if left.is_empty() {
             return Some(Outcome {
                 evaluation: chance_evaluation(&self.current.evaluation),
@@ -263,7 +311,7 @@ impl Planner<'_, '_, '_> {
         let outcomes: Vec<Option<Outcome>> = moves.par_iter().map(|m| self.outcome(m)).collect();
         for (m, outcome) in moves.iter().zip(&outcomes) {
             if let Some(o) = outcome {
-                self.tried.insert(self.removed(m), o.clone());
+                self.tried.insert(without(&self.remaining, m), o.clone());
             }
         }
         self.record_groups(&groups, &moves, &outcomes, groups_seen);
@@ -282,6 +330,8 @@ impl Planner<'_, '_, '_> {
             })?;
         let best = best.clone();
         self.remaining.retain(|i| !best.contains(i));
+        self.removed.extend(&best);
+        self.exact = false;
         self.current = outcome;
         let names: Vec<String> = best
             .iter()

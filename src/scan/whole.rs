@@ -7,15 +7,14 @@ use super::plan::{PlanInputs, removal_plan};
 use super::{Progress, ScanOptions};
 use crate::data::sample::stratified_sample;
 use crate::data::{EncodedColumn, ProtectedAttribute};
-use crate::report::{DropOne, JointColumn, WholeSet};
+use crate::report::{AucInterval, DropOne, JointColumn, WholeSet};
 use crate::surrogate::{BoostedSurrogate, Scores, Surrogate};
 use rayon::prelude::*;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
-/// Share of the attacker's total split gain below which drop-one does not
-/// refit a feature (unless it is flagged or a joint member). The rule is ours:
-/// such a feature barely changes the fitted trees, and the test
-/// `screened_features_barely_move_the_auc` measures how little removing one moves the AUC.
+/// Share of the attacker's total split gain below which a feature that is
+/// neither flagged nor a joint member may be screened out of the refits (see
+/// [`working_set`]). Our choice; the screen is checked by one refit each time.
 pub const DROP_ONE_MIN_SHARE: f64 = 0.01;
 
 /// The boosted attacker's out-of-fold scores, measures, and how much each
@@ -179,6 +178,8 @@ pub fn scan_whole_set(
             String::new()
         },
         drop_one_screened: ablation.screened,
+        drop_one_screened_auc: ablation.screened_auc,
+        plan_check: ablation.plan.check,
         redundancy_groups: ablation.plan.groups,
         plan_rule: if options.ablation {
             super::plan::plan_rule(options)
@@ -193,6 +194,7 @@ pub fn scan_whole_set(
 struct Ablation {
     drop_one: Vec<DropOne>,
     screened: Vec<String>,
+    screened_auc: Option<AucInterval>,
     plan: super::plan::Plan,
     refits: usize,
     rows: Option<usize>,
@@ -228,7 +230,7 @@ fn sampled_ablation(
         .collect();
     let sampled_inputs = AttackInputs::new(
         &features,
-        super::joints::nested_joints(&features, &sampled_target, options),
+        super::joints::nested_joints(&features, &sampled_target, options, progress),
     );
     let all: Vec<usize> = (0..features.len()).collect();
     let mut result = match attack(&sampled_inputs, &all, &sampled_target) {
@@ -269,12 +271,33 @@ fn ablation_sample(attribute: &ProtectedAttribute, options: &ScanOptions) -> Vec
     rows
 }
 
-/// Which features drop-one refits: every feature a model used whose share
-/// of the total split gain reaches `DROP_ONE_MIN_SHARE`, plus every used
-/// feature that is flagged or a joint member. Unused features need no refit
-/// (exact); the rest are screened out.
-fn refit_for_drop_one(inputs: &AttackInputs<'_>, full: &Attack, flagged: &[usize]) -> Vec<bool> {
-    let total: f64 = full.gains.iter().sum();
+/// Most the AUC may fall when every screened feature is removed at once for
+/// the working set to be used (our choice: a tenth of the spread between the
+/// default review and proxy lines).
+pub const SCREEN_TOLERANCE: f64 = 0.01;
+
+/// The features refits work on, and the attack on exactly those (`None`
+/// when it is `parent` itself).
+pub struct WorkingSet {
+    pub features: Vec<usize>,
+    pub baseline: Option<Attack>,
+}
+
+/// Screening rule. Of `subset` (the features `parent` was fitted on), refits
+/// keep each feature some fold's model split on whose share of the total
+/// split gain reaches `DROP_ONE_MIN_SHARE`, or that is flagged or a member of
+/// a joint column. Features no model split on are left out exactly (refitting
+/// without them grows the same trees). The others are screened out when
+/// removing all of them at once lowers the AUC by at most
+/// `SCREEN_TOLERANCE` (one refit checks it); otherwise every used feature is kept.
+pub fn working_set(
+    inputs: &AttackInputs<'_>,
+    target: &Target<'_>,
+    flagged: &[usize],
+    parent: &Attack,
+    subset: &[usize],
+) -> WorkingSet {
+    let total: f64 = subset.iter().map(|&i| parent.gains[i]).sum();
     let joint_member = |i: usize| {
         inputs
             .joints
@@ -282,14 +305,33 @@ fn refit_for_drop_one(inputs: &AttackInputs<'_>, full: &Attack, flagged: &[usize
             .iter()
             .any(|(a, b, _)| *a == i || *b == i)
     };
-    (0..inputs.features.len())
-        .map(|i| {
-            full.used(i)
-                && (full.gains[i] >= DROP_ONE_MIN_SHARE * total
-                    || flagged.contains(&i)
-                    || joint_member(i))
+    let used: Vec<usize> = subset.iter().copied().filter(|&i| parent.used(i)).collect();
+    let kept: Vec<usize> = used
+        .iter()
+        .copied()
+        .filter(|&i| {
+            parent.gains[i] >= DROP_ONE_MIN_SHARE * total || flagged.contains(&i) || joint_member(i)
         })
-        .collect()
+        .collect();
+    let all_used = WorkingSet {
+        features: used.clone(),
+        baseline: None,
+    };
+    if kept.len() == used.len() || kept.is_empty() {
+        return all_used;
+    }
+    match attack(inputs, &kept, target) {
+        Some(baseline)
+            if parent.evaluation.estimate.auc - baseline.evaluation.estimate.auc
+                <= SCREEN_TOLERANCE =>
+        {
+            WorkingSet {
+                features: kept,
+                baseline: Some(baseline),
+            }
+        }
+        _ => all_used,
+    }
 }
 
 /// The drop-one rule as the report states it.
@@ -299,15 +341,18 @@ fn drop_one_rule() -> String {
          whole-set AUC after refitting the attacker without it. A feature no fold's attacker \
          split on gets the whole-set AUC exactly, without a refit (training is deterministic, so \
          the refit would grow the same trees). A feature with under {:.0}% of the attacker's \
-         total split gain is not refitted unless it is flagged or part of a joint column \
-         (listed as screened). Features that rebuild each other each show little unique \
-         contribution; see the redundancy groups for what removing them together does.",
-        DROP_ONE_MIN_SHARE * 100.0
+         total split gain that is neither flagged nor part of a joint column is screened out \
+         when removing all such features at once lowers the AUC by at most {:.2} (the AUC \
+         without them is reported); the other features are then refitted without each one on \
+         the screened set. Features that rebuild each other each show little unique \
+         contribution; the redundancy groups show what removing them together does.",
+        DROP_ONE_MIN_SHARE * 100.0,
+        SCREEN_TOLERANCE
     )
 }
 
-/// Drop-one ablation (DeLong p-value against the full set) and the removal
-/// plan that starts from it.
+/// Drop-one ablation (DeLong p-value against the set it removes from) and
+/// the removal plan that starts from it.
 fn ablation(
     inputs: &AttackInputs<'_>,
     target: &Target<'_>,
@@ -318,17 +363,18 @@ fn ablation(
 ) -> Ablation {
     let features = inputs.features;
     let all: Vec<usize> = (0..features.len()).collect();
-    let refit = refit_for_drop_one(inputs, full, flagged);
-    let to_refit: Vec<usize> = all.iter().copied().filter(|&i| refit[i]).collect();
+    let working = working_set(inputs, target, flagged, full, &all);
+    let base = working.baseline.as_ref().unwrap_or(full);
     progress.stage(
         &format!("drop-one: {}", target.attribute.name),
-        to_refit.len() as u64,
+        working.features.len() as u64,
     );
     let refitted: Vec<(usize, Attack)> = if features.len() > 1 {
-        to_refit
+        working
+            .features
             .par_iter()
             .filter_map(|&i| {
-                let result = attack(inputs, &without(&all, &[i]), target);
+                let result = attack(inputs, &without(&working.features, &[i]), target);
                 progress.advance(1);
                 Some((i, result?))
             })
@@ -337,6 +383,7 @@ fn ablation(
         Vec::new()
     };
     let full_interval = full.evaluation.interval();
+    let base_auc = base.evaluation.estimate.auc;
     let unchanged = all.iter().filter(|&&i| !full.used(i)).map(|&i| DropOne {
         feature: features[i].name.clone(),
         auc: full_interval.auc,
@@ -355,19 +402,20 @@ fn ablation(
                 auc: interval.auc,
                 auc_low: interval.auc_low,
                 auc_high: interval.auc_high,
-                delta: full_interval.auc - interval.auc,
-                p_value: compare(&full.scores, &a.scores, target).map(|c| c.p_value),
+                delta: base_auc - interval.auc,
+                p_value: compare(&base.scores, &a.scores, target).map(|c| c.p_value),
                 refit: true,
             }
         })
         .chain(unchanged)
         .collect();
     drop_one.sort_by(|a, b| b.delta.total_cmp(&a.delta).then(a.feature.cmp(&b.feature)));
-    let screened = all
+    let screened: Vec<String> = all
         .iter()
-        .filter(|&&i| full.used(i) && !refit[i])
+        .filter(|&&i| full.used(i) && !working.features.contains(&i))
         .map(|&i| features[i].name.clone())
         .collect();
+    let screened_auc = working.baseline.as_ref().map(|b| b.evaluation.interval());
     let plan = removal_plan(
         &PlanInputs {
             inputs,
@@ -376,12 +424,14 @@ fn ablation(
             flagged,
         },
         full,
+        working,
         refitted,
         progress,
     );
     Ablation {
         drop_one,
         screened,
+        screened_auc,
         plan,
         refits: 0,
         rows: None,
