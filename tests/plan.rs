@@ -50,14 +50,20 @@ fn whole(results: &[ProtectedResult]) -> &WholeSet {
     results[0].whole_set.as_ref().expect("whole set")
 }
 
-/// Every step lowers the AUC it started from, and each starts where the previous ended.
-fn assert_steps_only_lower(whole: &WholeSet) {
+/// The features the plan removes, in order, after checking that every step
+/// lowers the AUC it started from and starts where the previous one ended.
+fn planned_removals(whole: &WholeSet) -> Vec<&str> {
     let mut before = whole.auc;
     for step in &whole.removal_plan {
         assert_eq!(step.auc_before, Some(before), "{step:?}");
         assert!(step.auc_after < before, "step raised the AUC: {step:?}");
         before = step.auc_after;
     }
+    whole
+        .removal_plan
+        .iter()
+        .flat_map(|s| s.features.iter().map(String::as_str))
+        .collect()
 }
 
 #[test]
@@ -101,12 +107,7 @@ fn redundant_proxies_are_removed_together() {
         &Silent,
     );
     let whole = whole(&results);
-    assert_steps_only_lower(whole);
-    let removed: Vec<&str> = whole
-        .removal_plan
-        .iter()
-        .flat_map(|s| s.features.iter().map(String::as_str))
-        .collect();
+    let removed = planned_removals(whole);
     assert!(
         removed.contains(&"region") && removed.contains(&"branch"),
         "plan {:?}",
@@ -165,13 +166,8 @@ fn an_additive_signal_needing_eight_removals_reaches_the_target() {
         &Silent,
     );
     let whole = whole(&results);
-    assert_steps_only_lower(whole);
     assert!(whole.target_reached, "plan {:?}", whole.removal_plan);
-    let mut removed: Vec<&str> = whole
-        .removal_plan
-        .iter()
-        .flat_map(|s| s.features.iter().map(String::as_str))
-        .collect();
+    let mut removed = planned_removals(whole);
     removed.sort_unstable();
     let parts: Vec<String> = (1..=8).map(|j| format!("part_{j}")).collect();
     assert_eq!(removed, parts, "plan {:?}", whole.removal_plan);

@@ -208,6 +208,11 @@ pub fn build_report(
              (--ablation-rows); the whole-set AUC uses every row"
         ));
     }
+    for result in &results {
+        if let Some(whole) = &result.whole_set {
+            notes.extend(whole::ablation_notes(&result.protected, whole));
+        }
+    }
     let unpaired: Vec<&str> = table
         .features
         .iter()

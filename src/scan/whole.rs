@@ -438,6 +438,42 @@ fn ablation(
     }
 }
 
+/// Report notes on what drop-one means and which features rebuild each other.
+pub fn ablation_notes(protected: &str, whole: &WholeSet) -> Vec<String> {
+    if !whole.ablation || whole.drop_one.is_empty() {
+        return Vec::new();
+    }
+    let unused = whole.drop_one.iter().filter(|d| !d.refit).count();
+    let mut notes = vec![format!(
+        "drop-one for `{protected}` is each feature's unique contribution given all the other \
+         features ({} refitted, {unused} never used by the attacker and so unchanged without a \
+         refit, {} screened out; {} attacker refits in all): features that rebuild each other \
+         each look unimportant alone",
+        whole.drop_one.len() - unused,
+        whole.drop_one_screened.len(),
+        whole.refits
+    )];
+    notes.extend(whole.redundancy_groups.iter().map(|g| {
+        let alone = g
+            .auc_without_each
+            .iter()
+            .flatten()
+            .fold(f64::INFINITY, |a, &b| a.min(b));
+        format!(
+            "{} rebuild each other for `{protected}`: removing them together brings the \
+             whole-set AUC to {:.3}, removing any one of them alone leaves it at {:.3} or more",
+            g.features
+                .iter()
+                .map(|f| format!("`{f}`"))
+                .collect::<Vec<_>>()
+                .join(", "),
+            g.auc_without_group.auc,
+            if alone.is_finite() { alone } else { whole.auc }
+        )
+    }));
+    notes
+}
+
 /// Whole-set AUC without and with the `added` features, and DeLong's test
 /// of the difference (same rows, same folds).
 pub fn added_features_effect(
