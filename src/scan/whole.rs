@@ -510,3 +510,27 @@ pub fn added_features_effect(
         p_value: Some(comparison.p_value),
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_ablation_sample_keeps_folds_rows_of_every_class() {
+        // 13 rows of class 1 in 100,000: a 1,000-row sample proportional to
+        // the classes would hold round(0.13) = 0 of them (1 after the
+        // sampler's floor); each of the 5 folds needs one.
+        let codes: Vec<u32> = (0..100_000).map(|r| u32::from(r % 8_000 == 7)).collect();
+        let attribute =
+            ProtectedAttribute::from_codes("a".into(), vec!["x".into(), "y".into()], codes, 0);
+        let options = ScanOptions {
+            ablation_rows: 1_000,
+            ..ScanOptions::default()
+        };
+        let rows = ablation_sample(&attribute, &options);
+        let minority = rows.iter().filter(|&&r| attribute.codes[r] == 1).count();
+        assert_eq!(minority, options.folds);
+        assert!(rows.windows(2).all(|w| w[0] < w[1]));
+        assert!((999..=1_005).contains(&rows.len()), "{}", rows.len());
+    }
+}
