@@ -66,9 +66,9 @@ def run_telltale(exe, csv, out_json):
     with open(out_json) as fh:
         report = json.load(fh)
     result = report["results"][0]
-    # The pairs telltale hands its attacker as joint columns (gain >= 0.05, at
-    # most 5; src/scan/whole.rs), so scikit-learn gets the same inputs.
-    joints = [p["features"] for p in result["pairs"] if p["gain"] >= 0.05][:5]
+    # The pairs telltale hands its attacker as joint columns (chosen inside
+    # each training fold; src/scan/joints.rs), so scikit-learn gets the same inputs.
+    joints = [j["features"] for j in result["whole_set"].get("joint_columns", [])]
     # telltale screens identifier-like columns alone, not in pairs.
     unpaired = {f["name"] for f in result["features"] if f["kind"] == "identifier-like"}
     return stages, peak_kb, result["whole_set"]["auc"], joints, unpaired

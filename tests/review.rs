@@ -62,6 +62,14 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         target_reached: false,
         ablation: true,
         ablation_rows: None,
+        joint_columns: Vec::new(),
+        refits: 0,
+        drop_one_rule: String::new(),
+        drop_one_screened: Vec::new(),
+        drop_one_screened_auc: None,
+        plan_check: None,
+        redundancy_groups: Vec::new(),
+        plan_rule: String::new(),
     }
 }
 

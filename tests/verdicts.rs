@@ -131,6 +131,8 @@ fn table(protected: ProtectedAttribute, features: Vec<EncodedColumn>) -> Encoded
         features,
         protected: vec![protected],
         skipped: Vec::new(),
+        missing_tokens: Vec::new(),
+        readings: Vec::new(),
     }
 }
 

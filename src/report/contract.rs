@@ -364,6 +364,55 @@ pub struct WholeSet {
     /// when the data had more than `--ablation-rows`; absent when all rows.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub ablation_rows: Option<usize>,
+    /// Pairs handed to the attacker as joint columns, each chosen inside the
+    /// training folds (never on the rows it scores), with how many folds chose it.
+    #[serde(default)]
+    pub joint_columns: Vec<JointColumn>,
+    /// Boosted cross-fits run by drop-one and the removal plan (the whole-set fit not counted).
+    #[serde(default)]
+    pub refits: usize,
+    /// How each drop-one value was obtained (exact shortcut, refit, screening rule).
+    #[serde(default)]
+    pub drop_one_rule: String,
+    /// Features the attacker used so little that drop-one did not refit them (see `drop_one_rule`).
+    #[serde(default)]
+    pub drop_one_screened: Vec<String>,
+    /// Whole-set AUC without every screened feature at once (the set drop-one and the plan refit from).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub drop_one_screened_auc: Option<AucInterval>,
+    /// Whole-set AUC of every feature except those the plan removes, refitted
+    /// at full width when the plan ran on a screened set.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub plan_check: Option<AucInterval>,
+    /// Groups of features that rebuild each other, with what removing them together and alone does.
+    #[serde(default)]
+    pub redundancy_groups: Vec<RedundancyGroup>,
+    /// The removal plan's rule: candidates, step choice, acceptance and when the target counts as reached.
+    #[serde(default)]
+    pub plan_rule: String,
+}
+
+/// A pair of features given to the whole-set attacker as one joint column.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct JointColumn {
+    pub features: [String; 2],
+    /// Training folds (of `settings.folds`) whose own pair screen chose this pair.
+    pub folds: usize,
+}
+
+/// Features that rebuild each other: removing one leaves the others to carry
+/// the same information, so only removing them together shows their weight.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct RedundancyGroup {
+    pub features: Vec<String>,
+    /// Smallest pairwise share of information one member carries about the
+    /// other: Miller–Madow mutual information over the smaller entropy (0 to 1).
+    pub redundancy: f64,
+    /// Whole-set AUC after removing the whole group, on the set the plan held
+    /// when it tested the group.
+    pub auc_without_group: AucInterval,
+    /// Whole-set AUC after removing each member alone from that same set, in the order of `features`.
+    pub auc_without_each: Vec<Option<f64>>,
 }
 
 /// Reports written before `ablation` existed always ran it.
@@ -386,12 +435,16 @@ pub struct DropOne {
     pub delta: f64,
     /// DeLong's test of the two correlated AUCs (same rows).
     pub p_value: Option<f64>,
+    /// False when no fold's attacker split on the feature: its drop-one AUC is
+    /// then the whole set's exactly, without a refit.
+    #[serde(default = "ran")]
+    pub refit: bool,
 }
 
 /// One step of the removal plan.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct RemovalStep {
-    /// The feature removed at this step.
+    /// The feature removed, or the members of a redundancy group joined by " + ".
     pub remove: String,
     /// Whole-set AUC once it and every earlier step's feature are removed.
     pub auc_after: f64,
@@ -399,6 +452,12 @@ pub struct RemovalStep {
     pub auc_low: f64,
     /// Upper end of its 95% interval.
     pub auc_high: f64,
+    /// Every feature removed at this step (one, or a redundancy group).
+    #[serde(default)]
+    pub features: Vec<String>,
+    /// Whole-set AUC before this step.
+    #[serde(default)]
+    pub auc_before: Option<f64>,
 }
 
 /// How the columns were read.

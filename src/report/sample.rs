@@ -147,6 +147,8 @@ fn removal_step(remove: &str, auc: f64) -> RemovalStep {
         auc_after: auc,
         auc_low: auc - 0.015,
         auc_high: auc + 0.015,
+        features: vec![remove.to_owned()],
+        auc_before: None,
     }
 }
 
@@ -168,6 +170,7 @@ fn whole_set() -> WholeSet {
             auc_high: 0.814,
             delta: 0.101,
             p_value: Some(0.0001),
+            refit: true,
         }],
         removal_plan: vec![
             removal_step(PIPE_NAME, 0.801),
@@ -177,6 +180,14 @@ fn whole_set() -> WholeSet {
         target_reached: true,
         ablation: true,
         ablation_rows: None,
+        joint_columns: Vec::new(),
+        refits: 0,
+        drop_one_rule: String::new(),
+        drop_one_screened: Vec::new(),
+        drop_one_screened_auc: None,
+        plan_check: None,
+        redundancy_groups: Vec::new(),
+        plan_rule: String::new(),
     }
 }
 

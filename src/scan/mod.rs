@@ -6,7 +6,9 @@
 mod composition;
 mod evaluate;
 pub mod explain;
+mod joints;
 mod pairs;
+mod plan;
 pub mod progress;
 mod singles;
 mod verdict;
@@ -136,8 +138,10 @@ fn scan_attribute(
     let whole_set = options
         .whole_set
         .then(|| {
-            let inputs = whole::AttackInputs::new(&table.features, &pairs);
-            whole::scan_whole_set(&inputs, &target, options, progress)
+            let joints = joints::nested_joints(&table.features, &target, options, progress);
+            let inputs = whole::AttackInputs::new(&table.features, joints);
+            let flagged = flagged_features(&table.features, &features);
+            whole::scan_whole_set(&inputs, &target, options, &flagged, progress)
         })
         .flatten();
     let smallest = attribute.counts.iter().copied().min().unwrap_or(0);
@@ -209,6 +213,24 @@ fn fitting_inflation(features: &[crate::report::FeatureResult]) -> Option<f64> {
     (n > 0).then(|| (ratios[(n - 1) / 2] + ratios[n / 2]) / 2.0)
 }
 
+/// Indices of the features the single-feature scan flagged `proxy` or `review`.
+fn flagged_features(
+    columns: &[crate::data::EncodedColumn],
+    results: &[crate::report::FeatureResult],
+) -> Vec<usize> {
+    use crate::report::Flag;
+    columns
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| {
+            results
+                .iter()
+                .any(|r| r.name == c.name && matches!(r.flag, Flag::Proxy | Flag::Review))
+        })
+        .map(|(i, _)| i)
+        .collect()
+}
+
 /// Assembles the full report for a scanned table.
 #[must_use]
 pub fn build_report(
@@ -239,6 +261,11 @@ pub fn build_report(
             "drop-one ablation and removal plan ran on a seeded stratified sample of {rows} rows \
              (--ablation-rows); the whole-set AUC uses every row"
         ));
+    }
+    for result in &results {
+        if let Some(whole) = &result.whole_set {
+            notes.extend(whole::ablation_notes(&result.protected, whole));
+        }
     }
     let unpaired: Vec<&str> = table
         .features
@@ -326,7 +353,8 @@ pub fn added_source_effects(
         .iter()
         .filter_map(|attribute| {
             let target = Target::new(attribute, options.folds, options.seed);
-            let inputs = whole::AttackInputs::new(&table.features, &[]);
+            let inputs =
+                whole::AttackInputs::new(&table.features, joints::FoldJoints::none(options.folds));
             whole::added_features_effect(&inputs, &indices, &target)
         })
         .collect()

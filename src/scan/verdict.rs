@@ -210,6 +210,14 @@ mod tests {
             target_reached: false,
             ablation: false,
             ablation_rows: None,
+            joint_columns: Vec::new(),
+            refits: 0,
+            drop_one_rule: String::new(),
+            drop_one_screened: Vec::new(),
+            drop_one_screened_auc: None,
+            plan_check: None,
+            redundancy_groups: Vec::new(),
+            plan_rule: String::new(),
         }
     }
 

@@ -1,100 +1,139 @@
 //! Whole-set attack: the boosted surrogate on every feature, drop-one
-//! ablation, and the greedy removal plan.
+//! ablation, and the removal plan (in [`super::plan`]).
 
 use super::evaluate::{Evaluation, Target, compare, evaluate, roc};
+use super::joints::FoldJoints;
+use super::plan::{PlanInputs, removal_plan};
 use super::{Progress, ScanOptions};
-use crate::data::encode::combine_codes;
 use crate::data::sample::stratified_sample;
-use crate::data::{EncodedColumn, FeatureKind};
-use crate::report::{DropOne, RemovalStep, WholeSet};
-use crate::surrogate::{BoostedSurrogate, Scores, Surrogate, cross_fit};
+use crate::data::{EncodedColumn, ProtectedAttribute};
+use crate::report::{AucInterval, DropOne, JointColumn, WholeSet};
+use crate::surrogate::{BoostedSurrogate, Scores, Surrogate};
 use rayon::prelude::*;
+use std::sync::atomic::{AtomicUsize, Ordering};
 
-/// The boosted attacker's out-of-fold scores and measures on a feature subset.
-struct Attack {
-    scores: Scores,
-    evaluation: Evaluation,
+/// Share of the attacker's total split gain below which a feature that is
+/// neither flagged nor a joint member may be screened out of the refits (see
+/// [`working_set`]). Our choice; the screen is checked by one refit each time.
+pub const DROP_ONE_MIN_SHARE: f64 = 0.01;
+
+/// The boosted attacker's out-of-fold scores, measures, and how much each
+/// feature was used.
+pub struct Attack {
+    pub scores: Scores,
+    pub evaluation: Evaluation,
+    /// Split gain per feature summed over every fold's model (a joint
+    /// column's gain counts for both members); 0 = no model read the feature.
+    pub gains: Vec<f64>,
 }
 
-/// The features, plus joint columns for pairs that leak mainly together.
-///
-/// Greedy tree growth cannot find a proxy that exists only in a pair (an
-/// exclusive-or pattern: neither first split gains anything), so the pairs the
-/// pair scan found with a large gain are handed to the attacker as one joint
-/// categorical column each, present only while both members are.
-pub struct AttackInputs<'a> {
-    pub features: &'a [EncodedColumn],
-    pub joints: Vec<(usize, usize, EncodedColumn)>,
-}
-
-impl<'a> AttackInputs<'a> {
-    /// Joint columns for up to `MAX_JOINTS` reported pairs with gain ≥ `JOINT_GAIN`.
-    pub fn new(features: &'a [EncodedColumn], pairs: &[crate::report::PairResult]) -> Self {
-        let index = |name: &str| features.iter().position(|f| f.name == name);
-        let joints = pairs
-            .iter()
-            .filter(|p| p.gain >= JOINT_GAIN)
-            .take(MAX_JOINTS)
-            .filter_map(|p| {
-                let (a, b) = (index(&p.features[0])?, index(&p.features[1])?);
-                let (codes, levels) =
-                    combine_codes(&features[a].codes, &features[b].codes, features[b].n_levels);
-                let column = EncodedColumn {
-                    name: format!("{} × {}", features[a].name, features[b].name),
-                    kind: FeatureKind::Categorical,
-                    codes,
-                    n_levels: levels,
-                    labels: (0..levels).map(|l| l.to_string()).collect(),
-                    missing_code: None,
-                    raw: None,
-                    missing_count: 0,
-                };
-                Some((a, b, column))
-            })
-            .collect();
-        Self { features, joints }
+impl Attack {
+    /// Features with positive split gain.
+    pub fn used(&self, feature: usize) -> bool {
+        self.gains[feature] > 0.0
     }
 }
 
-/// Pair gain from which the pair is given to the attacker as a joint column.
-const JOINT_GAIN: f64 = 0.05;
-/// Joint columns at most.
-const MAX_JOINTS: usize = 5;
-
-fn attack(inputs: &AttackInputs<'_>, subset: &[usize], target: &Target<'_>) -> Option<Attack> {
-    let model = BoostedSurrogate::default();
-    let joints = inputs
-        .joints
-        .iter()
-        .filter(|(a, b, _)| subset.contains(a) && subset.contains(b))
-        .map(|(_, _, column)| column);
-    let columns: Vec<&EncodedColumn> = subset
-        .iter()
-        .map(|&i| &inputs.features[i])
-        .chain(joints)
-        .collect();
-    let scores = cross_fit(
-        &model,
-        &columns,
-        target.codes(),
-        target.n_classes(),
-        &target.folds,
-        target.n_folds,
-    )
-    .ok()?;
-    let evaluation = evaluate(&scores, target)?;
-    Some(Attack { scores, evaluation })
+/// The features, the joint columns each training fold chose, and a count of
+/// the cross-fits run.
+pub struct AttackInputs<'a> {
+    pub features: &'a [EncodedColumn],
+    pub joints: FoldJoints,
+    fits: AtomicUsize,
 }
 
-fn without(subset: &[usize], feature: usize) -> Vec<usize> {
-    subset.iter().copied().filter(|&i| i != feature).collect()
+impl<'a> AttackInputs<'a> {
+    pub fn new(features: &'a [EncodedColumn], joints: FoldJoints) -> Self {
+        Self {
+            features,
+            joints,
+            fits: AtomicUsize::new(0),
+        }
+    }
+
+    /// Cross-fits of the attacker run so far.
+    pub fn fits(&self) -> usize {
+        self.fits.load(Ordering::Relaxed)
+    }
+
+    /// Columns of one fold's attacker on `subset`: the features, then the
+    /// fold's joint columns whose members are both in the subset; with the
+    /// features each column stands for.
+    fn fold_columns(
+        &self,
+        subset: &[usize],
+        fold: usize,
+    ) -> (Vec<&EncodedColumn>, Vec<Vec<usize>>) {
+        let mut columns: Vec<&EncodedColumn> = subset.iter().map(|&i| &self.features[i]).collect();
+        let mut owners: Vec<Vec<usize>> = subset.iter().map(|&i| vec![i]).collect();
+        for &j in &self.joints.chosen[fold] {
+            let (a, b, column) = &self.joints.columns[j];
+            if subset.contains(a) && subset.contains(b) {
+                columns.push(column);
+                owners.push(vec![*a, *b]);
+            }
+        }
+        (columns, owners)
+    }
+}
+
+/// One fold's held-out rows, their probabilities, the split gain per column
+/// and the features each column stands for.
+type FoldFit = (Vec<usize>, Vec<f64>, Vec<f64>, Vec<Vec<usize>>);
+
+/// Out-of-fold scores of the attacker on `subset` and each feature's split gain.
+pub fn attack(inputs: &AttackInputs<'_>, subset: &[usize], target: &Target<'_>) -> Option<Attack> {
+    inputs.fits.fetch_add(1, Ordering::Relaxed);
+    let model = BoostedSurrogate::default();
+    let (classes, k) = (target.codes(), target.n_classes());
+    let per_fold: Vec<FoldFit> = (0..target.n_folds)
+        .into_par_iter()
+        .map(|fold| {
+            let (train, held_out) = crate::data::folds::split(&target.folds, fold as u8);
+            let (columns, owners) = inputs.fold_columns(subset, fold);
+            let fitted = model.fit_model(&columns, classes, k, &train).ok()?;
+            let predicted = crate::surrogate::Fitted::predict_proba(&fitted, &columns, &held_out);
+            Some((held_out, predicted, fitted.split_gains(), owners))
+        })
+        .collect::<Option<_>>()?;
+    let mut proba = vec![0.0; classes.len() * k];
+    let mut gains = vec![0.0; inputs.features.len()];
+    for (held_out, predicted, fold_gains, owners) in &per_fold {
+        for (&row, p) in held_out.iter().zip(predicted.chunks_exact(k)) {
+            proba[row * k..(row + 1) * k].copy_from_slice(p);
+        }
+        for (&gain, owner) in fold_gains.iter().zip(owners) {
+            owner.iter().for_each(|&f| gains[f] += gain);
+        }
+    }
+    let scores = Scores {
+        n_classes: k,
+        proba,
+    };
+    let evaluation = evaluate(&scores, target)?;
+    Some(Attack {
+        scores,
+        evaluation,
+        gains,
+    })
+}
+
+/// `subset` without the features in `removed`.
+pub fn without(subset: &[usize], removed: &[usize]) -> Vec<usize> {
+    subset
+        .iter()
+        .copied()
+        .filter(|i| !removed.contains(i))
+        .collect()
 }
 
 /// Whole-set AUC with interval, BER, drop-one ablation and removal plan.
+/// `flagged` are the features the single-feature scan flagged.
 pub fn scan_whole_set(
     inputs: &AttackInputs<'_>,
     target: &Target<'_>,
     options: &ScanOptions,
+    flagged: &[usize],
     progress: &dyn Progress,
 ) -> Option<WholeSet> {
     let features = inputs.features;
@@ -102,10 +141,10 @@ pub fn scan_whole_set(
     progress.stage(&format!("whole set: {}", target.attribute.name), 1);
     let full = attack(inputs, &all, target)?;
     progress.advance(1);
-    let (drop_one, removal_plan, target_reached, ablation_rows) = if options.ablation {
-        sampled_ablation(inputs, target, options, &full, progress)
+    let ablation = if options.ablation {
+        sampled_ablation(inputs, target, options, flagged, &full, progress)
     } else {
-        (Vec::new(), Vec::new(), false, None)
+        Ablation::default()
     };
     let interval = full.evaluation.interval();
     Some(WholeSet {
@@ -118,16 +157,48 @@ pub fn scan_whole_set(
         surrogate: BoostedSurrogate::default().name().to_string(),
         features_used: features.len(),
         roc: Some(roc(&full.scores, target)),
-        drop_one,
-        removal_plan,
-        target_reached,
+        drop_one: ablation.drop_one,
+        removal_plan: ablation.plan.steps,
+        target_reached: ablation.plan.reached,
         ablation: options.ablation,
-        ablation_rows,
+        ablation_rows: ablation.rows,
+        joint_columns: inputs
+            .joints
+            .fold_counts()
+            .into_iter()
+            .map(|(a, b, folds)| JointColumn {
+                features: [features[a].name.clone(), features[b].name.clone()],
+                folds,
+            })
+            .collect(),
+        refits: ablation.refits,
+        drop_one_rule: if options.ablation {
+            drop_one_rule()
+        } else {
+            String::new()
+        },
+        drop_one_screened: ablation.screened,
+        drop_one_screened_auc: ablation.screened_auc,
+        plan_check: ablation.plan.check,
+        redundancy_groups: ablation.plan.groups,
+        plan_rule: if options.ablation {
+            super::plan::plan_rule(options)
+        } else {
+            String::new()
+        },
     })
 }
 
-/// Drop-one ablation and removal plan, with the rows they ran on when sampled.
-type AblationResult = (Vec<DropOne>, Vec<RemovalStep>, bool, Option<usize>);
+/// Drop-one ablation and removal plan results.
+#[derive(Default)]
+struct Ablation {
+    drop_one: Vec<DropOne>,
+    screened: Vec<String>,
+    screened_auc: Option<AucInterval>,
+    plan: super::plan::Plan,
+    refits: usize,
+    rows: Option<usize>,
+}
 
 /// The ablation on every row, or, above `ablation_rows` rows, on a seeded
 /// sample stratified by the protected attribute: every drop and every plan
@@ -139,182 +210,268 @@ fn sampled_ablation(
     inputs: &AttackInputs<'_>,
     target: &Target<'_>,
     options: &ScanOptions,
+    flagged: &[usize],
     full: &Attack,
     progress: &dyn Progress,
-) -> AblationResult {
+) -> Ablation {
     let attribute = target.attribute;
     if attribute.codes.len() <= options.ablation_rows {
-        let (drops, plan, reached) = ablation(inputs, target, options, full, progress);
-        return (drops, plan, reached, None);
+        let mut result = ablation(inputs, target, options, flagged, full, progress);
+        result.refits = inputs.fits() - 1;
+        return result;
     }
-    let rows = stratified_sample(
-        &attribute.codes,
-        attribute.n_classes(),
-        options.ablation_rows,
-        options.seed,
-    );
+    let rows = ablation_sample(attribute, options);
     let sampled_attribute = attribute.select_rows(&rows);
     let sampled_target = Target::new(&sampled_attribute, options.folds, options.seed);
     let features: Vec<EncodedColumn> = inputs
         .features
-        .iter()
+        .par_iter()
         .map(|f| f.select_rows(&rows))
         .collect();
-    let sampled_inputs = AttackInputs {
-        features: &features,
-        joints: inputs
-            .joints
-            .iter()
-            .map(|(a, b, joint)| (*a, *b, joint.select_rows(&rows)))
-            .collect(),
-    };
-    let all: Vec<usize> = (0..features.len()).collect();
-    let Some(sampled_full) = attack(&sampled_inputs, &all, &sampled_target) else {
-        return (Vec::new(), Vec::new(), false, Some(rows.len()));
-    };
-    let (drops, plan, reached) = ablation(
-        &sampled_inputs,
-        &sampled_target,
-        options,
-        &sampled_full,
-        progress,
+    let sampled_inputs = AttackInputs::new(
+        &features,
+        super::joints::nested_joints(&features, &sampled_target, options, progress),
     );
-    (drops, plan, reached, Some(rows.len()))
+    let all: Vec<usize> = (0..features.len()).collect();
+    let mut result = match attack(&sampled_inputs, &all, &sampled_target) {
+        Some(sampled_full) => ablation(
+            &sampled_inputs,
+            &sampled_target,
+            options,
+            flagged,
+            &sampled_full,
+            progress,
+        ),
+        None => Ablation::default(),
+    };
+    result.refits = sampled_inputs.fits();
+    result.rows = Some(rows.len());
+    result
 }
 
-/// Drop-one ablation (every feature, DeLong p-value against the full set)
-/// and the removal plan that starts from it.
+/// A seeded stratified sample of `ablation_rows` rows that keeps at least
+/// `folds` rows of every class (all of a class's rows when it has fewer), so
+/// that every fold of the refitted attacker sees every class.
+fn ablation_sample(attribute: &ProtectedAttribute, options: &ScanOptions) -> Vec<usize> {
+    let k = attribute.n_classes();
+    let mut rows = stratified_sample(&attribute.codes, k, options.ablation_rows, options.seed);
+    let mut taken = vec![0usize; k];
+    rows.iter()
+        .for_each(|&r| taken[attribute.codes[r] as usize] += 1);
+    let mut chosen = vec![false; attribute.codes.len()];
+    rows.iter().for_each(|&r| chosen[r] = true);
+    for (row, &class) in attribute.codes.iter().enumerate() {
+        let class = class as usize;
+        if !chosen[row] && taken[class] < options.folds {
+            rows.push(row);
+            taken[class] += 1;
+        }
+    }
+    rows.sort_unstable();
+    rows
+}
+
+/// Most the AUC may fall when every screened feature is removed at once for
+/// the working set to be used (our choice: a tenth of the spread between the
+/// default review and proxy lines).
+pub const SCREEN_TOLERANCE: f64 = 0.01;
+
+/// The features refits work on, and the attack on exactly those (`None`
+/// when it is `parent` itself).
+pub struct WorkingSet {
+    pub features: Vec<usize>,
+    pub baseline: Option<Attack>,
+}
+
+/// Screening rule. Of `subset` (the features `parent` was fitted on), refits
+/// keep each feature some fold's model split on whose share of the total
+/// split gain reaches `DROP_ONE_MIN_SHARE`, or that is flagged or a member of
+/// a joint column. Features no model split on are left out exactly (refitting
+/// without them grows the same trees). The others are screened out when
+/// removing all of them at once lowers the AUC by at most
+/// `SCREEN_TOLERANCE` (one refit checks it); otherwise every used feature is kept.
+pub fn working_set(
+    inputs: &AttackInputs<'_>,
+    target: &Target<'_>,
+    flagged: &[usize],
+    parent: &Attack,
+    subset: &[usize],
+) -> WorkingSet {
+    let total: f64 = subset.iter().map(|&i| parent.gains[i]).sum();
+    let joint_member = |i: usize| {
+        inputs
+            .joints
+            .columns
+            .iter()
+            .any(|(a, b, _)| *a == i || *b == i)
+    };
+    let used: Vec<usize> = subset.iter().copied().filter(|&i| parent.used(i)).collect();
+    let kept: Vec<usize> = used
+        .iter()
+        .copied()
+        .filter(|&i| {
+            parent.gains[i] >= DROP_ONE_MIN_SHARE * total || flagged.contains(&i) || joint_member(i)
+        })
+        .collect();
+    let all_used = WorkingSet {
+        features: used.clone(),
+        baseline: None,
+    };
+    if kept.len() == used.len() || kept.is_empty() {
+        return all_used;
+    }
+    match attack(inputs, &kept, target) {
+        Some(baseline)
+            if parent.evaluation.estimate.auc - baseline.evaluation.estimate.auc
+                <= SCREEN_TOLERANCE =>
+        {
+            WorkingSet {
+                features: kept,
+                baseline: Some(baseline),
+            }
+        }
+        _ => all_used,
+    }
+}
+
+/// The drop-one rule as the report states it.
+fn drop_one_rule() -> String {
+    format!(
+        "Drop-one is each feature's unique contribution given all the other features: the \
+         whole-set AUC after refitting the attacker without it. A feature no fold's attacker \
+         split on gets the whole-set AUC exactly, without a refit (training is deterministic, so \
+         the refit would grow the same trees). A feature with under {:.0}% of the attacker's \
+         total split gain that is neither flagged nor part of a joint column is screened out \
+         when removing all such features at once lowers the AUC by at most {:.2} (the AUC \
+         without them is reported); the other features are then refitted without each one on \
+         the screened set. Features that rebuild each other each show little unique \
+         contribution; the redundancy groups show what removing them together does.",
+        DROP_ONE_MIN_SHARE * 100.0,
+        SCREEN_TOLERANCE
+    )
+}
+
+/// Drop-one ablation (DeLong p-value against the set it removes from) and
+/// the removal plan that starts from it.
 fn ablation(
     inputs: &AttackInputs<'_>,
     target: &Target<'_>,
     options: &ScanOptions,
+    flagged: &[usize],
     full: &Attack,
     progress: &dyn Progress,
-) -> (Vec<DropOne>, Vec<RemovalStep>, bool) {
+) -> Ablation {
     let features = inputs.features;
     let all: Vec<usize> = (0..features.len()).collect();
+    let working = working_set(inputs, target, flagged, full, &all);
+    let base = working.baseline.as_ref().unwrap_or(full);
     progress.stage(
         &format!("drop-one: {}", target.attribute.name),
-        features.len() as u64,
+        working.features.len() as u64,
     );
-    let drops: Vec<(usize, Option<Attack>)> = if features.len() > 1 {
-        all.par_iter()
-            .map(|&i| {
-                let result = attack(inputs, &without(&all, i), target);
+    let refitted: Vec<(usize, Attack)> = if features.len() > 1 {
+        working
+            .features
+            .par_iter()
+            .filter_map(|&i| {
+                let result = attack(inputs, &without(&working.features, &[i]), target);
                 progress.advance(1);
-                (i, result)
+                Some((i, result?))
             })
             .collect()
     } else {
         Vec::new()
     };
-    let drop_one = drops
+    let full_interval = full.evaluation.interval();
+    let base_auc = base.evaluation.estimate.auc;
+    let unchanged = all.iter().filter(|&&i| !full.used(i)).map(|&i| DropOne {
+        feature: features[i].name.clone(),
+        auc: full_interval.auc,
+        auc_low: full_interval.auc_low,
+        auc_high: full_interval.auc_high,
+        delta: 0.0,
+        p_value: None,
+        refit: false,
+    });
+    let mut drop_one: Vec<DropOne> = refitted
         .iter()
-        .filter_map(|(i, a)| {
-            let a = a.as_ref()?;
+        .map(|(i, a)| {
             let interval = a.evaluation.interval();
-            Some(DropOne {
+            DropOne {
                 feature: features[*i].name.clone(),
                 auc: interval.auc,
                 auc_low: interval.auc_low,
                 auc_high: interval.auc_high,
-                delta: full.evaluation.estimate.auc - interval.auc,
-                p_value: compare(&full.scores, &a.scores, target).map(|c| c.p_value),
-            })
+                delta: base_auc - interval.auc,
+                p_value: compare(&base.scores, &a.scores, target).map(|c| c.p_value),
+                refit: true,
+            }
         })
+        .chain(unchanged)
         .collect();
-    let first_step: Vec<(usize, Evaluation)> = drops
-        .into_iter()
-        .filter_map(|(i, a)| Some((i, a?.evaluation)))
+    drop_one.sort_by(|a, b| b.delta.total_cmp(&a.delta).then(a.feature.cmp(&b.feature)));
+    let screened: Vec<String> = all
+        .iter()
+        .filter(|&&i| full.used(i) && !working.features.contains(&i))
+        .map(|&i| features[i].name.clone())
         .collect();
-    let (removal_plan, target_reached) = removal_plan(
-        inputs,
-        target,
-        options,
-        &full.evaluation,
-        first_step,
+    let screened_auc = working.baseline.as_ref().map(|b| b.evaluation.interval());
+    let plan = removal_plan(
+        &PlanInputs {
+            inputs,
+            target,
+            options,
+            flagged,
+        },
+        full,
+        working,
+        refitted,
         progress,
     );
-    (drop_one, removal_plan, target_reached)
+    Ablation {
+        drop_one,
+        screened,
+        screened_auc,
+        plan,
+        refits: 0,
+        rows: None,
+    }
 }
 
-/// Greedy plan: each step removes the candidate whose removal lowers the
-/// whole-set AUC most, until the AUC is below the target or no feature is
-/// left. The first step weighs every feature (the drop-one results); later
-/// steps re-fit only the `removal_candidates` features that cost the most at
-/// the previous step, a documented budget that keeps the plan to O(F) fits.
-fn removal_plan(
-    inputs: &AttackInputs<'_>,
-    target: &Target<'_>,
-    options: &ScanOptions,
-    full: &Evaluation,
-    first_step: Vec<(usize, Evaluation)>,
-    progress: &dyn Progress,
-) -> (Vec<RemovalStep>, bool) {
-    let features = inputs.features;
-    let mut remaining: Vec<usize> = (0..features.len()).collect();
-    let mut candidates = first_step;
-    let mut steps = Vec::new();
-    let mut auc = full.estimate.auc;
-    if features.len() == 1 {
-        candidates = vec![(0, chance_evaluation(full))];
+/// Report notes on what drop-one means and which features rebuild each other.
+pub fn ablation_notes(protected: &str, whole: &WholeSet) -> Vec<String> {
+    if !whole.ablation || whole.drop_one.is_empty() {
+        return Vec::new();
     }
-    progress.stage(
-        &format!("removal plan: {}", target.attribute.name),
-        features.len() as u64,
-    );
-    while auc >= options.target_auc && !candidates.is_empty() {
-        candidates.sort_by(|a, b| {
-            a.1.estimate
-                .auc
-                .total_cmp(&b.1.estimate.auc)
-                .then(a.0.cmp(&b.0))
-        });
-        let (removed, evaluation) = candidates.remove(0);
-        remaining.retain(|&i| i != removed);
-        auc = evaluation.estimate.auc;
-        let interval = evaluation.interval();
-        steps.push(RemovalStep {
-            remove: features[removed].name.clone(),
-            auc_after: interval.auc,
-            auc_low: interval.auc_low,
-            auc_high: interval.auc_high,
-        });
-        progress.advance(1);
-        if auc < options.target_auc || remaining.is_empty() {
-            break;
-        }
-        let next: Vec<usize> = candidates
+    let unused = whole.drop_one.iter().filter(|d| !d.refit).count();
+    let mut notes = vec![format!(
+        "drop-one for `{protected}` is each feature's unique contribution given all the other \
+         features ({} refitted, {unused} never used by the attacker and so unchanged without a \
+         refit, {} screened out; {} attacker refits in all): features that rebuild each other \
+         each look unimportant alone",
+        whole.drop_one.len() - unused,
+        whole.drop_one_screened.len(),
+        whole.refits
+    )];
+    notes.extend(whole.redundancy_groups.iter().map(|g| {
+        let alone = g
+            .auc_without_each
             .iter()
-            .take(options.removal_candidates)
-            .map(|(i, _)| *i)
-            .collect();
-        candidates = if remaining.len() == 1 {
-            vec![(remaining[0], chance_evaluation(full))]
-        } else {
-            next.par_iter()
-                .filter_map(|&i| {
-                    Some((
-                        i,
-                        attack(inputs, &without(&remaining, i), target)?.evaluation,
-                    ))
-                })
-                .collect()
-        };
-    }
-    (steps, auc < options.target_auc)
-}
-
-/// With no feature left, an attacker can only guess: AUC ½ exactly.
-fn chance_evaluation(full: &Evaluation) -> Evaluation {
-    let mut chance = full.clone();
-    chance.estimate.auc = 0.5;
-    chance.estimate.low = 0.5;
-    chance.estimate.high = 0.5;
-    chance.estimate.se = 0.0;
-    chance.estimate.variance = 0.0;
-    chance.hand_till = chance.hand_till.map(|_| 0.5);
-    chance
+            .flatten()
+            .fold(f64::INFINITY, |a, &b| a.min(b));
+        format!(
+            "{} rebuild each other for `{protected}`: removing them together brings the \
+             whole-set AUC to {:.3}, removing any one of them alone leaves it at {:.3} or more",
+            g.features
+                .iter()
+                .map(|f| format!("`{f}`"))
+                .collect::<Vec<_>>()
+                .join(", "),
+            g.auc_without_group.auc,
+            if alone.is_finite() { alone } else { whole.auc }
+        )
+    }));
+    notes
 }
 
 /// Whole-set AUC without and with the `added` features, and DeLong's test
@@ -326,7 +483,7 @@ pub fn added_features_effect(
 ) -> Option<crate::report::AddedSourceEffect> {
     let features = inputs.features;
     let all: Vec<usize> = (0..features.len()).collect();
-    let base: Vec<usize> = all.iter().copied().filter(|i| !added.contains(i)).collect();
+    let base = without(&all, added);
     let with = attack(inputs, &all, target)?;
     let without = if base.is_empty() {
         None
@@ -335,7 +492,7 @@ pub fn added_features_effect(
     };
     let auc_with = with.evaluation.interval();
     let Some(without) = without else {
-        let chance = chance_evaluation(&with.evaluation).interval();
+        let chance = super::plan::chance_evaluation(&with.evaluation).interval();
         return Some(crate::report::AddedSourceEffect {
             protected: target.attribute.name.clone(),
             auc_without: chance,
@@ -352,4 +509,28 @@ pub fn added_features_effect(
         difference: auc_with.auc - without.evaluation.estimate.auc,
         p_value: Some(comparison.p_value),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_ablation_sample_keeps_folds_rows_of_every_class() {
+        // 13 rows of class 1 in 100,000: a 1,000-row sample proportional to
+        // the classes would hold round(0.13) = 0 of them (1 after the
+        // sampler's floor); each of the 5 folds needs one.
+        let codes: Vec<u32> = (0..100_000).map(|r| u32::from(r % 8_000 == 7)).collect();
+        let attribute =
+            ProtectedAttribute::from_codes("a".into(), vec!["x".into(), "y".into()], codes, 0);
+        let options = ScanOptions {
+            ablation_rows: 1_000,
+            ..ScanOptions::default()
+        };
+        let rows = ablation_sample(&attribute, &options);
+        let minority = rows.iter().filter(|&&r| attribute.codes[r] == 1).count();
+        assert_eq!(minority, options.folds);
+        assert!(rows.windows(2).all(|w| w[0] < w[1]));
+        assert!((999..=1_005).contains(&rows.len()), "{}", rows.len());
+    }
 }

@@ -387,6 +387,8 @@ enum Node {
         rule: Rule,
         left: usize,
         right: usize,
+        /// Loss reduction of the split (G²/H of the children minus the parent's).
+        gain: f64,
     },
 }
 
@@ -407,6 +409,7 @@ impl Tree {
                     rule,
                     left,
                     right,
+                    ..
                 } => {
                     let missing = binned.value_bins[*feature] as u8;
                     id = if rule.goes_left(binned.bins[*feature][row], missing) {
@@ -564,6 +567,7 @@ impl TreeGrower<'_> {
             rule: split.rule,
             left: left.node,
             right: right.node,
+            gain: split.gain,
         };
         (left, right)
     }
@@ -725,7 +729,7 @@ fn should_stop(losses: &[f64], n: usize, tolerance: f64) -> bool {
 }
 
 /// A fitted boosted model.
-struct FittedBoosted {
+pub struct FittedBoosted {
     binners: Vec<Binner>,
     k: usize,
     baseline: Vec<f64>,
@@ -734,6 +738,22 @@ struct FittedBoosted {
 }
 
 impl FittedBoosted {
+    /// Total split gain per input column over every tree: 0 for a column no
+    /// split ever used, which the model then never reads (its predictions do
+    /// not depend on that column at all).
+    #[must_use]
+    pub fn split_gains(&self) -> Vec<f64> {
+        let mut gains = vec![0.0; self.binners.len()];
+        for tree in self.trees.iter().flatten() {
+            for node in &tree.nodes {
+                if let Node::Branch { feature, gain, .. } = node {
+                    gains[*feature] += gain;
+                }
+            }
+        }
+        gains
+    }
+
     fn bin(&self, columns: &[&EncodedColumn], rows: &[usize]) -> Binned {
         Binned::new(&self.binners, columns, rows)
     }
@@ -804,18 +824,25 @@ impl BoostedSurrogate {
     }
 }
 
-impl Surrogate for BoostedSurrogate {
-    fn name(&self) -> &'static str {
-        "boosted"
-    }
-
-    fn fit(
+impl BoostedSurrogate {
+    /// Fits on `train` rows; the concrete model, whose [`FittedBoosted::split_gains`]
+    /// tell which columns it uses.
+    ///
+    /// Training is deterministic and each column is binned on its own (its
+    /// binning seed derives from its name, not its position), and the best
+    /// split is the first column with the largest gain. So a column no split
+    /// used can be removed without changing a single tree: refitting without
+    /// it gives bit-identical predictions.
+    ///
+    /// # Errors
+    /// No column, no training row, fewer than two classes, or invalid parameters.
+    pub fn fit_model(
         &self,
         columns: &[&EncodedColumn],
         target: &[u32],
         n_classes: usize,
         train: &[usize],
-    ) -> Result<Box<dyn Fitted>, SurrogateError> {
+    ) -> Result<FittedBoosted, SurrogateError> {
         check_inputs(self.name(), columns, n_classes, train.len())?;
         if !(1..=255).contains(&self.max_bins) || self.max_leaf_nodes < 2 {
             return Err(SurrogateError {
@@ -826,8 +853,7 @@ impl Surrogate for BoostedSurrogate {
         let (fitting, validation) = validation_split(self, target, n_classes, train);
         let binners: Vec<Binner> = columns
             .par_iter()
-            .enumerate()
-            .map(|(i, c)| Binner::fit(c, &fitting, self.max_bins, self.seed ^ i as u64))
+            .map(|c| Binner::fit(c, &fitting, self.max_bins, column_seed(self.seed, &c.name)))
             .collect();
         let baseline = baseline(&class_shares(target, n_classes, &fitting));
         let mut model = FittedBoosted {
@@ -866,7 +892,32 @@ impl Surrogate for BoostedSurrogate {
                 break;
             }
         }
-        Ok(Box::new(model))
+        Ok(model)
+    }
+}
+
+/// Binning seed of a column: the model seed mixed with an FNV-1a hash of the
+/// column's name, so a column bins the same whatever else is in the model.
+fn column_seed(seed: u64, name: &str) -> u64 {
+    let hash = name.bytes().fold(0xcbf2_9ce4_8422_2325_u64, |h, b| {
+        (h ^ u64::from(b)).wrapping_mul(0x0100_0000_01b3)
+    });
+    seed ^ hash
+}
+
+impl Surrogate for BoostedSurrogate {
+    fn name(&self) -> &'static str {
+        "boosted"
+    }
+
+    fn fit(
+        &self,
+        columns: &[&EncodedColumn],
+        target: &[u32],
+        n_classes: usize,
+        train: &[usize],
+    ) -> Result<Box<dyn Fitted>, SurrogateError> {
+        Ok(Box::new(self.fit_model(columns, target, n_classes, train)?))
     }
 }
 
@@ -910,5 +961,34 @@ mod tests {
         assert_probability_rows(&scores.proba, 2);
         let positive: Vec<bool> = target.iter().map(|&t| t == 1).collect();
         assert!(auc_from_scores(&scores.column(1), &positive).unwrap() > 0.999);
+    }
+
+    #[test]
+    fn a_column_no_split_uses_can_be_removed_without_changing_the_model() {
+        // A level held by 10 rows can never be split off: both children of a
+        // split need `min_samples_leaf` = 20 rows (scikit-learn's default).
+        // Such a column gets zero split gain, and dropping it from the middle
+        // of the column list (shifting the later columns' positions) leaves
+        // every prediction bit-identical: training is deterministic.
+        let (columns, target) = toy(2_000, 2, 3);
+        let rare = crate::data::encode::encode_levels(
+            "rare",
+            crate::data::FeatureKind::Categorical,
+            (0..2_000).map(|r| Some(if r % 200 == 0 { "b" } else { "a" })),
+        );
+        let with: Vec<&EncodedColumn> = vec![&columns[0], &rare, &columns[1]];
+        let without: Vec<&EncodedColumn> = vec![&columns[0], &columns[1]];
+        let train: Vec<usize> = (0..1_500).collect();
+        let held_out: Vec<usize> = (1_500..2_000).collect();
+        let model = BoostedSurrogate::default();
+        let fitted = model.fit_model(&with, &target, 2, &train).unwrap();
+        let gains = fitted.split_gains();
+        assert_eq!(gains[1], 0.0);
+        assert!(gains[0] > 0.0 && gains[2] > 0.0);
+        let refitted = model.fit_model(&without, &target, 2, &train).unwrap();
+        assert_eq!(
+            fitted.predict_proba(&with, &held_out),
+            refitted.predict_proba(&without, &held_out)
+        );
     }
 }

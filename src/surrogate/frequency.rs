@@ -35,7 +35,7 @@ impl Default for FrequencySurrogate {
 
 /// m-estimate of one cell's class shares into `out`: (n_a + m·q_a) / (n + m);
 /// `q` itself when the cell is empty and m = 0.
-fn smooth_into(counts: &[f64], prior: &[f64], m: f64, out: &mut [f64]) {
+pub(crate) fn smooth_into(counts: &[f64], prior: &[f64], m: f64, out: &mut [f64]) {
     let n: f64 = counts.iter().sum();
     if n + m <= 0.0 {
         out.copy_from_slice(prior);
@@ -48,7 +48,7 @@ fn smooth_into(counts: &[f64], prior: &[f64], m: f64, out: &mut [f64]) {
 
 /// Naive-Bayes combination of two single-column posteriors into `out`:
 /// p(a | x, y) ∝ p(a | x) p(a | y) / π_a (x and y independent given a).
-fn combine_into(left: &[f64], right: &[f64], prior: &[f64], out: &mut [f64]) {
+pub(crate) fn combine_into(left: &[f64], right: &[f64], prior: &[f64], out: &mut [f64]) {
     for (((o, &l), &r), &p) in out.iter_mut().zip(left).zip(right).zip(prior) {
         *o = if p > 0.0 { l * r / p } else { 0.0 };
     }
