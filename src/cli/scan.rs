@@ -200,7 +200,7 @@ pub fn run(args: &ScanArgs) -> Result<Status> {
         options.thresholds = policy.thresholds.applied_to(options.thresholds);
         whole_set_auc = policy.thresholds.whole_set_auc_low.unwrap_or(whole_set_auc);
     }
-    check_outputs(args)?;
+    check_outputs(args.report.as_ref(), args.json.as_ref(), args.force)?;
     let mut report = match (&args.add_source, &args.key) {
         (Some(source), Some(key)) => scan_with_source(args, source, key, &options, &progress)?,
         _ => {
@@ -293,11 +293,11 @@ fn file_name(path: &std::path::Path) -> String {
 }
 
 /// Refuses up front to overwrite outputs, so no time is spent scanning first.
-fn check_outputs(args: &ScanArgs) -> Result<()> {
-    if args.force {
+pub fn check_outputs(report: Option<&PathBuf>, json: Option<&PathBuf>, force: bool) -> Result<()> {
+    if force {
         return Ok(());
     }
-    if let Some(dir) = &args.report {
+    if let Some(dir) = report {
         let existing = dir.join(JsonRenderer.file_name());
         if existing.exists() {
             bail!(
@@ -306,11 +306,7 @@ fn check_outputs(args: &ScanArgs) -> Result<()> {
             );
         }
     }
-    if let Some(path) = args
-        .json
-        .as_ref()
-        .filter(|p| p.as_os_str() != "-" && p.exists())
-    {
+    if let Some(path) = json.filter(|p| p.as_os_str() != "-" && p.exists()) {
         bail!(
             "{}: file exists; pass --force to replace it",
             path.display()

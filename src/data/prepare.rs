@@ -176,12 +176,13 @@ fn edit_distance(a: &str, b: &str) -> usize {
 }
 
 /// A column's values as read: text fields or numbers (`NaN` = missing).
-enum Values<'a> {
+pub(crate) enum Values<'a> {
     Text(Vec<Option<&'a str>>),
     Numbers(Vec<f64>),
 }
 
-fn values_of<'a>(path: &Path, column: &'a Column) -> Result<Values<'a>, InputError> {
+/// The values of `column`: text for string columns, numbers for numeric ones.
+pub(crate) fn values_of<'a>(path: &Path, column: &'a Column) -> Result<Values<'a>, InputError> {
     let bad = |reason: String| InputError::BadColumn {
         path: path.to_path_buf(),
         column: column.name().to_string(),
