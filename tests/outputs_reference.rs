@@ -53,7 +53,9 @@ fn report() -> OutputsReport {
 }
 
 fn close(actual: f64, expected: &Value, what: &str) {
-    let expected = expected.as_f64().unwrap_or_else(|| panic!("{what}: not a number"));
+    let expected = expected
+        .as_f64()
+        .unwrap_or_else(|| panic!("{what}: not a number"));
     assert!(
         (actual - expected).abs() <= TOLERANCE,
         "{what}: {actual} vs reference {expected}"
@@ -96,7 +98,11 @@ fn group_rates_and_exact_intervals_match_pandas_and_scipy() {
                 close(value.unwrap(), &want[field], &format!("{what} {field}"));
             }
             let auc = &reference["attributes"][name]["auc_vs_rest"][&group.label];
-            close(group.score_auc_vs_rest.unwrap(), auc, &format!("{what} AUC vs rest"));
+            close(
+                group.score_auc_vs_rest.unwrap(),
+                auc,
+                &format!("{what} AUC vs rest"),
+            );
         }
     }
 }
@@ -200,7 +206,9 @@ fn calibration_bands_match_pandas_qcut() {
     let report = report();
     let reference = reference();
     for name in ATTRIBUTES {
-        let want = reference["attributes"][name]["calibration"].as_array().unwrap();
+        let want = reference["attributes"][name]["calibration"]
+            .as_array()
+            .unwrap();
         let bands = &result(&report, name).calibration;
         assert_eq!(bands.len(), want.len(), "{name}");
         for (band, want) in bands.iter().zip(want) {
@@ -236,7 +244,11 @@ fn carriers_match_a_pandas_residualisation() {
         assert_eq!(got.carriers.len(), 3);
         for carrier in &got.carriers {
             let want = &reference["attributes"][name]["carriers"][&carrier.feature];
-            close(carrier.auc_adjusted.unwrap(), &want["auc_adjusted"], &carrier.feature);
+            close(
+                carrier.auc_adjusted.unwrap(),
+                &want["auc_adjusted"],
+                &carrier.feature,
+            );
             let drop = got.score_auc.unwrap().auc - carrier.auc_adjusted.unwrap();
             assert!((carrier.auc_drop.unwrap() - drop).abs() < 1e-15);
         }
