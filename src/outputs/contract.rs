@@ -147,7 +147,8 @@ pub struct ImpactRatio {
     pub lowest: String,
     pub highest: String,
     pub four_fifths: FourFifths,
-    /// Fisher's exact test (two-sided) of the lowest and highest groups' selection rates.
+    /// Fisher's exact test (two-sided) of the lowest and highest groups'
+    /// selection rates; 0 where it underflows a double (below about 1e-308).
     pub fisher_exact_p: f64,
 }
 

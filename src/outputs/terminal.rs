@@ -20,6 +20,17 @@ fn exact_rate(value: Option<&Rate>) -> String {
     )
 }
 
+/// `= 0.012`, `= 3.7e-25`, or `< 1e-300` where the double underflows.
+fn p_value(p: f64) -> String {
+    if p < 1e-300 {
+        "< 1e-300".to_string()
+    } else if p < 1e-3 {
+        format!("= {p:.1e}")
+    } else {
+        format!("= {p:.3}")
+    }
+}
+
 fn count(value: Option<u64>, min_cell: u64) -> String {
     value.map_or_else(|| suppressed(min_cell), |v| v.to_string())
 }
@@ -86,7 +97,7 @@ fn render_result(out: &mut String, result: &OutputsResult, min_cell: u64) {
         };
         let _ = writeln!(
             out,
-            "  adverse impact ratio ({} over {}): {ratio}; {} four-fifths; Fisher exact p = {:.3e}\n    \
+            "  adverse impact ratio ({} over {}): {ratio}; {} four-fifths; Fisher exact p {}\n    \
              four-fifths: {}",
             impact.lowest,
             impact.highest,
@@ -95,7 +106,7 @@ fn render_result(out: &mut String, result: &OutputsResult, min_cell: u64) {
             } else {
                 "not below"
             },
-            impact.fisher_exact_p,
+            p_value(impact.fisher_exact_p),
             impact.four_fifths.basis
         );
     }
@@ -191,6 +202,7 @@ fn render_calibration(out: &mut String, result: &OutputsResult, min_cell: u64) {
     for cell in &first.groups {
         let _ = write!(out, " {:<30}", cell.label);
     }
+    trim_line_end(out);
     out.push('\n');
     for band in &result.calibration {
         let _ = write!(
@@ -205,6 +217,13 @@ fn render_calibration(out: &mut String, result: &OutputsResult, min_cell: u64) {
             };
             let _ = write!(out, " {text:<30}");
         }
+        trim_line_end(out);
         out.push('\n');
     }
+}
+
+/// Removes the padding after the last column of a line.
+fn trim_line_end(out: &mut String) {
+    let kept = out.trim_end_matches(' ').len();
+    out.truncate(kept);
 }
