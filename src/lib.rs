@@ -10,6 +10,7 @@ pub mod data;
 pub mod error;
 pub mod keys;
 pub mod outputs;
+pub mod pipeline;
 pub mod report;
 pub mod review;
 pub mod rng;

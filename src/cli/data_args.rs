@@ -1,15 +1,15 @@
 //! Flags shared by commands that read a data file: where it is, how to read
 //! it, and which column plays which role.
 
-use crate::data::EncodedTable;
-use crate::data::join::{JoinSummary, attach_source};
-use crate::data::load::{self, FileFormat, FileSummary, LoadOptions};
-use crate::data::prepare::{self, EncodeOptions, Roles};
-use crate::scan::Progress;
+use super::scan::ScanSettingsArgs;
+use crate::data::load::{FileFormat, LoadOptions};
+use crate::data::prepare::{EncodeOptions, Roles};
+use crate::pipeline::ScreenOptions;
+use crate::review::policy::Policy;
 use anyhow::{Context, Result, bail};
 use clap::{Args, ValueEnum};
 use std::collections::BTreeMap;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 #[derive(Debug, Clone, Copy, ValueEnum)]
 pub enum FormatArg {
@@ -117,86 +117,38 @@ impl DataArgs {
         })
     }
 
-    pub fn encode_options(&self) -> Result<EncodeOptions> {
-        if self.folds < 2 || self.folds > 50 {
-            bail!("--folds must be between 2 and 50, got {}", self.folds);
-        }
-        if self.bins < 2 || self.bins > 1024 {
-            bail!("--bins must be between 2 and 1024, got {}", self.bins);
-        }
-        Ok(EncodeOptions {
+    pub fn encode_options(&self) -> EncodeOptions {
+        EncodeOptions {
             bins: self.bins,
             max_classes: self.max_classes,
-            min_class_rows: self.folds,
             sample: self.sample,
-            seed: self.seed,
             ..EncodeOptions::default()
-        })
+        }
     }
 
-    /// Checks, reads and encodes the file.
-    pub fn load(&self, progress: &dyn Progress) -> Result<(FileSummary, EncodedTable)> {
-        let options = self.load_options()?;
-        let roles = self.roles()?;
-        let encode = self.encode_options()?;
-        progress.stage("checking file", 1);
-        let summary = load::inspect(&self.data, options)?;
-        let plan = prepare::plan_columns(&self.data, &summary.columns, &roles)?;
-        progress.stage("reading and encoding", 1);
-        let columns = load::FileColumns {
-            summary: &summary,
-            options,
-        };
-        let table = prepare::encode_table(&self.data, &columns, &plan, &roles, &encode)?;
-        Ok((summary, table))
-    }
-
-    /// Checks, reads and joins a new source onto the base file by `key`, then
-    /// encodes both; the key itself is never a feature.
-    pub fn load_with_source(
+    /// The screen's options from these flags and the scan settings, validated once.
+    pub fn screen_options(
         &self,
-        source: &Path,
-        key: &str,
-        progress: &dyn Progress,
-    ) -> Result<(FileSummary, FileSummary, JoinSummary, EncodedTable)> {
-        let options = self.load_options()?;
-        let mut roles = self.roles()?;
-        let encode = self.encode_options()?;
-        progress.stage("checking files", 2);
-        let base = load::inspect(&self.data, options)?;
-        let source_options = LoadOptions {
-            format: None,
-            ..options
-        };
-        let added = load::inspect(source, source_options)?;
-        for (summary, path) in [(&base, &self.data), (&added, &source.to_path_buf())] {
-            if !summary.columns.iter().any(|c| c == key) {
-                bail!(
-                    "{}: key column `{key}` not found (columns are: {})",
-                    path.display(),
-                    summary.columns.join(", ")
-                );
-            }
+        settings: &ScanSettingsArgs,
+        policy: Option<Policy>,
+    ) -> Result<ScreenOptions> {
+        Ok(ScreenOptions {
+            load: self.load_options()?,
+            roles: self.roles()?,
+            encode: self.encode_options(),
+            scan: settings.options(self.folds, self.seed, self.min_cell),
+            policy,
+            command: command_line(),
         }
-        roles.exclude.push(key.to_string());
-        let base_plan = prepare::plan_columns(&self.data, &base.columns, &roles)?;
-        let mut needed = base_plan.needed();
-        needed.push(key.to_string());
-        progress.stage("reading and joining", 1);
-        let base_frame = load::read_columns(&base, &needed, options)?;
-        let added_frame = load::read_columns(&added, &added.columns, source_options)?;
-        let (joined, join) = attach_source(base_frame, &self.data, added_frame, source, key)?;
-        if let Some(features) = roles.features.as_mut() {
-            features.extend(join.new_columns.iter().cloned());
-        }
-        let columns: Vec<String> = joined
-            .get_column_names()
-            .iter()
-            .map(|n| n.to_string())
-            .collect();
-        let plan = prepare::plan_columns(&self.data, &columns, &roles)?;
-        progress.stage("encoding", 1);
-        let table = prepare::encode_table(&self.data, &joined, &plan, &roles, &encode)?;
-        Ok((base, added, join, table))
+        .validated()?)
     }
+}
+
+/// The command line as typed, for the report's settings.
+pub fn command_line() -> String {
+    std::env::args()
+        .skip(1)
+        .map(|a| if a.contains(' ') { format!("'{a}'") } else { a })
+        .collect::<Vec<_>>()
+        .join(" ")
 }

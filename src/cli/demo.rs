@@ -1,12 +1,13 @@
 //! `telltale demo`: generate the fictional demo data, scan it, write the report.
 
 use super::Status;
+use super::data_args::command_line;
 use super::progress::TerminalProgress;
-use super::scan::{ScanSettingsArgs, command_line, emit};
-use crate::data::demo::{DemoSpec, encode_demo, generate, with_scores};
+use super::scan::{ScanSettingsArgs, emit};
+use crate::data::demo::{DemoSpec, demo_roles, encode_demo, generate, with_scores};
 use crate::data::prepare::EncodeOptions;
+use crate::pipeline::{self, ScreenOptions};
 use crate::report::DatasetInfo;
-use crate::scan;
 use anyhow::{Context, Result, bail};
 use clap::Args;
 use polars::prelude::{CsvWriter, SerWriter};
@@ -14,6 +15,8 @@ use std::path::{Path, PathBuf};
 
 /// Default folder of the demo report; a free numbered sibling is used if it exists.
 const DEFAULT_DIR: &str = "telltale-demo";
+/// Smallest cell shown in the demo's reports (the scan's default).
+const MIN_CELL: u64 = 10;
 
 #[derive(Debug, Args)]
 pub struct DemoArgs {
@@ -58,6 +61,17 @@ pub fn run(args: &DemoArgs) -> Result<Status> {
     if args.rows < 100 {
         bail!("--rows must be at least 100, got {}", args.rows);
     }
+    let options = ScreenOptions {
+        roles: demo_roles(),
+        encode: EncodeOptions {
+            bins: args.bins,
+            ..EncodeOptions::default()
+        },
+        scan: args.settings.options(args.folds, args.seed, MIN_CELL),
+        command: command_line(),
+        ..ScreenOptions::default()
+    }
+    .validated()?;
     let spec = DemoSpec {
         rows: args.rows,
         seed: args.seed,
@@ -88,14 +102,7 @@ pub fn run(args: &DemoArgs) -> Result<Status> {
         None => free_folder(Path::new(DEFAULT_DIR)),
     };
     let progress = TerminalProgress::with_timings(args.quiet, args.timings);
-    let options = args.settings.options(args.folds, args.seed, 10)?;
-    let encode = EncodeOptions {
-        bins: args.bins,
-        min_class_rows: args.folds,
-        seed: args.seed,
-        ..EncodeOptions::default()
-    };
-    let table = encode_demo(&data, &encode)?;
+    let table = encode_demo(&data, &options.encode)?;
     let dataset = DatasetInfo {
         source: format!("demo:seed={}:rows={}", args.seed, args.rows),
         rows: args.rows,
@@ -105,15 +112,8 @@ pub fn run(args: &DemoArgs) -> Result<Status> {
         rows_dropped_missing_protected: 0,
         sample: None,
     };
-    let report = scan::build_report(
-        &table,
-        dataset,
-        &options,
-        args.bins,
-        command_line(),
-        &progress,
-    );
-    emit(&report, Some(&dir), None, args.force)?;
+    let screening = pipeline::screen_table(&table, dataset, &options, &progress);
+    emit(&screening.report, Some(&dir), None, args.force)?;
     Ok(Status::Clean)
 }
 

@@ -5,8 +5,8 @@ use super::data_args::DataArgs;
 use super::output::write_one;
 use super::progress::TerminalProgress;
 use super::scan::ScanSettingsArgs;
+use crate::pipeline;
 use crate::report::explanation::render_text;
-use crate::scan::explain::explain;
 use anyhow::{Context, Result};
 use clap::Args;
 use std::path::PathBuf;
@@ -30,16 +30,8 @@ pub struct ExplainArgs {
 
 pub fn run(args: &ExplainArgs) -> Result<Status> {
     let progress = TerminalProgress::with_timings(args.data.quiet, args.data.timings);
-    let options = args
-        .settings
-        .options(args.data.folds, args.data.seed, args.data.min_cell)?;
-    let (summary, table) = args.data.load(&progress)?;
-    let mut explanations = Vec::new();
-    for index in 0..table.protected.len() {
-        let explanation = explain(&table, index, &args.feature, &options, &progress)
-            .with_context(|| summary.path.display().to_string())?;
-        explanations.push(explanation);
-    }
+    let options = args.data.screen_options(&args.settings, None)?;
+    let explanations = pipeline::explain_file(&args.data.data, &args.feature, &options, &progress)?;
     let to_stdout = args.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
     if !to_stdout {
         for explanation in &explanations {

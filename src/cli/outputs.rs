@@ -2,14 +2,13 @@
 //! evaluation of a trained model's scores and decisions.
 
 use super::Status;
-use super::data_args::DataArgs;
+use super::data_args::{DataArgs, command_line};
 use super::output::write_one;
-use super::scan::{check_outputs, command_line};
+use super::scan::check_outputs;
 use crate::data::prepare::EncodeOptions;
-use crate::outputs::input::{ScoredSpec, Selection, read_scored};
-use crate::outputs::{
-    OutputsOptions, OutputsReport, OutputsThresholds, build_report, gate_failures, terminal,
-};
+use crate::outputs::input::{ScoredSpec, Selection};
+use crate::outputs::{OutputsOptions, OutputsReport, OutputsThresholds, terminal};
+use crate::pipeline;
 use anyhow::{Context, Result, bail};
 use clap::{ArgGroup, Args};
 use std::path::{Path, PathBuf};
@@ -106,7 +105,10 @@ impl OutputsArgs {
         if self.data.sample.is_some() {
             bail!("--sample does not apply to outputs: every row counts in a selection rate");
         }
-        let encode = self.data.encode_options()?;
+        if !(2..=1024).contains(&self.data.bins) {
+            bail!("--bins must be between 2 and 1024, got {}", self.data.bins);
+        }
+        let encode = self.data.encode_options();
         Ok(ScoredSpec {
             path: self.data.data.clone(),
             load: self.data.load_options()?,
@@ -127,19 +129,17 @@ pub fn run(args: &OutputsArgs) -> Result<Status> {
     let spec = args.spec()?;
     let options = args.options()?;
     check_outputs(args.report.as_ref(), args.json.as_ref(), args.force)?;
-    let data = read_scored(&spec)?;
-    let report = build_report(&data, &spec, &options, command_line());
+    let evaluation = pipeline::evaluate_outputs(&spec, &options, command_line())?;
     emit(
-        &report,
+        &evaluation.report,
         args.report.as_deref(),
         args.json.as_deref(),
         args.force,
     )?;
-    let failures = gate_failures(&report);
-    if failures.is_empty() {
+    if evaluation.failures.is_empty() {
         return Ok(Status::Clean);
     }
-    for failure in &failures {
+    for failure in &evaluation.failures {
         eprintln!("telltale: threshold exceeded: {failure}");
     }
     Ok(Status::ThresholdExceeded)

@@ -4,14 +4,14 @@ use super::Status;
 use super::data_args::DataArgs;
 use super::output::{write_one, write_report_dir};
 use super::progress::TerminalProgress;
-use crate::data::load::FileSummary;
+use crate::pipeline::{self, Screening};
 use crate::report::html::HtmlRenderer;
 use crate::report::json::JsonRenderer;
 use crate::report::markdown::MarkdownRenderer;
 use crate::report::terminal::TerminalRenderer;
-use crate::report::{AddedSource, DatasetInfo, Renderer, Report, Thresholds};
-use crate::review::policy::{Policy, today_utc};
-use crate::scan::{self, PairMode, ScanOptions};
+use crate::report::{Renderer, Report, Thresholds};
+use crate::review::policy::Policy;
+use crate::scan::{PairMode, ScanOptions};
 use anyhow::{Result, bail};
 use clap::{Args, ValueEnum};
 use std::io::IsTerminal;
@@ -23,10 +23,6 @@ pub enum PairsArg {
     Top,
     None,
 }
-
-/// Fewest rows an ablation sample may have: below this, DeLong intervals of
-/// the refitted attacker are too wide for the ranking to mean much.
-const MIN_ABLATION_ROWS: usize = 1_000;
 
 /// Settings of the scan itself (shared by `scan` and `demo`).
 #[derive(Debug, Args)]
@@ -63,24 +59,10 @@ pub struct ScanSettingsArgs {
 }
 
 impl ScanSettingsArgs {
-    pub fn options(&self, folds: usize, seed: u64, min_cell: u64) -> Result<ScanOptions> {
-        for (name, value) in [
-            ("--target-auc", self.target_auc),
-            ("--proxy-auc", self.proxy_auc),
-            ("--review-auc", self.review_auc),
-            ("--whole-set-auc", self.whole_set_auc),
-        ] {
-            if !(0.5..=1.0).contains(&value) {
-                bail!("{name} must be between 0.5 and 1, got {value}");
-            }
-        }
-        if self.ablation_rows < MIN_ABLATION_ROWS {
-            bail!(
-                "--ablation-rows must be at least {MIN_ABLATION_ROWS}, got {}",
-                self.ablation_rows
-            );
-        }
-        Ok(ScanOptions {
+    /// The scan's settings; validated with the rest by
+    /// [`ScreenOptions::validated`](crate::pipeline::ScreenOptions::validated).
+    pub fn options(&self, folds: usize, seed: u64, min_cell: u64) -> ScanOptions {
+        ScanOptions {
             folds,
             seed,
             pairs: match self.pairs {
@@ -93,13 +75,14 @@ impl ScanSettingsArgs {
                 proxy_auc_low: self.proxy_auc,
                 review_auc_low: self.review_auc,
                 review_ami: self.review_ami,
+                whole_set_auc_low: self.whole_set_auc,
             },
             min_cell,
             whole_set: !self.no_whole_set,
             ablation: !self.no_ablation,
             ablation_rows: self.ablation_rows,
             ..ScanOptions::default()
-        })
+        }
     }
 }
 
@@ -164,112 +147,41 @@ pub fn emit(
     Ok(())
 }
 
-fn dataset_info(
-    summary: &FileSummary,
-    table: &crate::data::EncodedTable,
-    sample: Option<usize>,
-) -> DatasetInfo {
-    DatasetInfo {
-        source: file_name(&summary.path),
-        rows: summary.rows,
-        rows_used: table.rows(),
-        columns: summary.columns.len(),
-        sha256: Some(summary.sha256.clone()),
-        rows_dropped_missing_protected: table.protected.first().map_or(0, |p| p.dropped_missing),
-        sample,
-    }
-}
-
-/// The command line as typed, for the report's settings (file paths reduced to names).
-pub fn command_line() -> String {
-    std::env::args()
-        .skip(1)
-        .map(|a| if a.contains(' ') { format!("'{a}'") } else { a })
-        .collect::<Vec<_>>()
-        .join(" ")
-}
-
 pub fn run(args: &ScanArgs) -> Result<Status> {
     let progress = TerminalProgress::with_timings(args.data.quiet, args.data.timings);
     let policy = args.policy.as_deref().map(Policy::load).transpose()?;
-    let mut options = args
-        .settings
-        .options(args.data.folds, args.data.seed, args.data.min_cell)?;
-    let mut whole_set_auc = args.settings.whole_set_auc;
-    if let Some(policy) = &policy {
-        options.thresholds = policy.thresholds.applied_to(options.thresholds);
-        whole_set_auc = policy.thresholds.whole_set_auc_low.unwrap_or(whole_set_auc);
-    }
+    let options = args.data.screen_options(&args.settings, policy)?;
     check_outputs(args.report.as_ref(), args.json.as_ref(), args.force)?;
-    let mut report = match (&args.add_source, &args.key) {
-        (Some(source), Some(key)) => scan_with_source(args, source, key, &options, &progress)?,
+    let screening = match (&args.add_source, &args.key) {
+        (Some(source), Some(key)) => {
+            pipeline::screen_with_source(&args.data.data, source, key, &options, &progress)?
+        }
         _ => {
-            let (summary, table) = args.data.load(&progress)?;
+            let (summary, table) = pipeline::load_table(&args.data.data, &options, &progress)?;
             progress.note_timing("floor pass", floor_pass(&table));
-            let dataset = dataset_info(&summary, &table, args.data.sample);
-            scan::build_report(
-                &table,
-                dataset,
-                &options,
-                args.data.bins,
-                command_line(),
-                &progress,
-            )
+            let dataset = pipeline::file_dataset(&summary, &table, options.encode.sample);
+            pipeline::screen_table(&table, dataset, &options, &progress)
         }
     };
-    if let Some(policy) = &policy {
-        policy.apply(&mut report, &today_utc());
-    }
     emit(
-        &report,
+        &screening.report,
         args.report.as_ref(),
         args.json.as_ref(),
         args.force,
     )?;
-    let failures = scan::gate_failures(&report, whole_set_auc);
-    if failures.is_empty() {
-        Ok(Status::Clean)
-    } else {
-        for failure in &failures {
-            eprintln!("telltale: threshold exceeded: {failure}");
-        }
-        Ok(Status::ThresholdExceeded)
-    }
+    Ok(gate_status(&screening))
 }
 
-/// Joins the new source, scans everything, and adds what the new columns change.
-fn scan_with_source(
-    args: &ScanArgs,
-    source: &std::path::Path,
-    key: &str,
-    options: &ScanOptions,
-    progress: &TerminalProgress,
-) -> Result<Report> {
-    let (base, added, join, table) = args.data.load_with_source(source, key, progress)?;
-    let mut dataset = dataset_info(&base, &table, args.data.sample);
-    dataset.columns += join.new_columns.len();
-    let mut report = scan::build_report(
-        &table,
-        dataset,
-        options,
-        args.data.bins,
-        command_line(),
-        progress,
-    );
-    report.added_source = Some(AddedSource {
-        source: file_name(&added.path),
-        sha256: added.sha256.clone(),
-        key: key.to_string(),
-        new_columns: join.new_columns.clone(),
-        base_rows: join.base_rows,
-        matched_rows: join.matched_rows,
-        unmatched_base_rows: join.unmatched_base_rows,
-        unmatched_source_rows: join.unmatched_source_rows,
-        duplicate_keys_in_source: join.duplicate_keys_in_source,
-        duplicate_keys_in_base: join.duplicate_keys_in_base,
-        per_protected: scan::added_source_effects(&table, &join.new_columns, options),
-    });
-    Ok(report)
+/// Prints each gate failure to standard error and maps the gate to an exit status.
+pub fn gate_status(screening: &Screening) -> Status {
+    for failure in &screening.failures {
+        eprintln!("telltale: threshold exceeded: {failure}");
+    }
+    if screening.passes() {
+        Status::Clean
+    } else {
+        Status::ThresholdExceeded
+    }
 }
 
 /// Seconds for one plain pass reading every encoded code once: the
@@ -283,13 +195,6 @@ fn floor_pass(table: &crate::data::EncodedTable) -> f64 {
         .sum();
     std::hint::black_box(total);
     start.elapsed().as_secs_f64()
-}
-
-fn file_name(path: &std::path::Path) -> String {
-    path.file_name().map_or_else(
-        || path.display().to_string(),
-        |n| n.to_string_lossy().to_string(),
-    )
 }
 
 /// Refuses up front to overwrite outputs, so no time is spent scanning first.

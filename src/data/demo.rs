@@ -307,12 +307,21 @@ pub fn with_scores(mut data: DemoData, seed: u64) -> DemoData {
     data
 }
 
+/// The demo's roles: `community` is the protected attribute, every other column a feature.
+#[must_use]
+pub fn demo_roles() -> super::prepare::Roles {
+    super::prepare::Roles {
+        protected: vec!["community".to_string()],
+        ..super::prepare::Roles::default()
+    }
+}
+
 /// Encodes generated demo data for a scan of `community` (no file involved).
 pub fn encode_demo(
     data: &DemoData,
     options: &super::prepare::EncodeOptions,
 ) -> Result<super::EncodedTable, crate::error::InputError> {
-    use super::prepare::{Roles, encode_table, plan_columns};
+    use super::prepare::{encode_table, plan_columns};
     let source = std::path::Path::new("demo");
     let columns: Vec<String> = data
         .frame
@@ -320,10 +329,7 @@ pub fn encode_demo(
         .iter()
         .map(|n| n.to_string())
         .collect();
-    let roles = Roles {
-        protected: vec!["community".to_string()],
-        ..Roles::default()
-    };
+    let roles = demo_roles();
     let plan = plan_columns(source, &columns, &roles)?;
     encode_table(source, &data.frame, &plan, &roles, options)
 }

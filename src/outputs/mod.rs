@@ -14,6 +14,7 @@ pub mod terminal;
 pub use contract::*;
 
 use crate::data::ProtectedAttribute;
+use crate::pipeline::file_dataset;
 use crate::report::format::percent;
 use crate::report::{DatasetInfo, SCHEMA_VERSION, ToolInfo};
 use bands::{SegmentCount, calibration, thin_segments};
@@ -102,21 +103,13 @@ pub fn build_report(
             version: env!("CARGO_PKG_VERSION").to_string(),
         },
         dataset: DatasetInfo {
-            source: data.summary.path.file_name().map_or_else(
-                || data.summary.path.display().to_string(),
-                |n| n.to_string_lossy().to_string(),
-            ),
-            rows: data.summary.rows,
-            rows_used: data.score.len(),
-            columns: data.summary.columns.len(),
-            sha256: Some(data.summary.sha256.clone()),
             rows_dropped_missing_protected: data
                 .dropped
                 .iter()
                 .filter(|(reason, _)| reason.starts_with("protected"))
                 .map(|(_, rows)| rows)
                 .sum(),
-            sample: None,
+            ..file_dataset(&data.summary, &data.table, None)
         },
         settings: settings(data, spec, options, command),
         results,
@@ -176,7 +169,8 @@ fn evaluate(
     let counts = count_groups(classes, k, &data.selected, outcome);
     let separation = proxy::separation(&data.score, classes, k);
     let score_auc = separation.auc;
-    let higher_scoring = (attribute.is_binary())
+    let higher_scoring = attribute
+        .is_binary()
         .then(|| {
             let positive = attribute.positive as usize;
             let above = separation.per_class[positive]? >= 0.5;
@@ -201,12 +195,7 @@ fn evaluate(
     };
     let mut result = OutputsResult {
         protected: attribute.name.clone(),
-        kind: if attribute.is_binary() {
-            "binary"
-        } else {
-            "multiclass"
-        }
-        .to_string(),
+        kind: attribute.kind().to_string(),
         headline: String::new(),
         score_auc,
         higher_scoring,

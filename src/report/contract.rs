@@ -9,12 +9,19 @@ use std::collections::BTreeMap;
 /// Current version of the JSON layout.
 pub const SCHEMA_VERSION: u32 = 1;
 
+/// A finished screen (built by `scan::build_report`, policy and added source
+/// filled in by `pipeline`).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct Report {
+    /// Layout version ([`SCHEMA_VERSION`]).
     pub schema_version: u32,
+    /// The program that wrote the report.
     pub tool: ToolInfo,
+    /// What was read (`pipeline::file_dataset`, or the demo's description).
     pub dataset: DatasetInfo,
+    /// The settings the scan ran with.
     pub settings: Settings,
+    /// One entry per protected attribute (`scan::scan`).
     pub results: Vec<ProtectedResult>,
     /// Columns not scanned, with the reason (constant, all missing, excluded...).
     #[serde(default)]
@@ -28,15 +35,20 @@ pub struct Report {
     /// Statements about what was not computed and why.
     #[serde(default)]
     pub notes: Vec<String>,
+    /// A statistical screen is not a legal determination (`crate::CAUTION`).
     pub caution: String,
 }
 
+/// Name and version of the program that wrote a report.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct ToolInfo {
+    /// Always `telltale`.
     pub name: String,
+    /// The crate version.
     pub version: String,
 }
 
+/// The data a report describes (`pipeline::file_dataset`).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct DatasetInfo {
     /// File name (or `demo:<seed>:<rows>` for generated data); never a full path.
@@ -57,16 +69,24 @@ pub struct DatasetInfo {
     pub sample: Option<usize>,
 }
 
+/// The settings a scan ran with (`scan::build_report`), enough to repeat it.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct Settings {
+    /// Cross-fitting folds (stratified by the protected attribute).
     pub folds: usize,
+    /// Seed of folds, samples and models.
     pub seed: u64,
+    /// Quantile bins of numeric features.
     pub bins: usize,
+    /// Cells with fewer rows are suppressed in every rendering.
     pub min_cell: u64,
+    /// Flag and gate thresholds (after any policy override).
     pub thresholds: Thresholds,
     /// `all`, `top` or `none`.
     pub pairs: String,
+    /// The removal plan stops once the whole-set AUC is below this.
     pub target_auc: f64,
+    /// The command line as typed.
     pub command: String,
 }
 
@@ -79,6 +99,15 @@ pub struct Thresholds {
     pub review_auc_low: f64,
     /// ...or when adjusted mutual information reaches this.
     pub review_ami: f64,
+    /// The gate fails when the whole-set AUC interval's lower bound reaches this
+    /// (see `review::gate::gate_failures`). Reports written before this field
+    /// existed used the default.
+    #[serde(default = "default_whole_set_auc_low")]
+    pub whole_set_auc_low: f64,
+}
+
+fn default_whole_set_auc_low() -> f64 {
+    Thresholds::default().whole_set_auc_low
 }
 
 impl Default for Thresholds {
@@ -87,6 +116,7 @@ impl Default for Thresholds {
             proxy_auc_low: 0.70,
             review_auc_low: 0.60,
             review_ami: 0.05,
+            whole_set_auc_low: 0.70,
         }
     }
 }
@@ -111,18 +141,23 @@ impl Flag {
     }
 }
 
+/// A class of the protected attribute and its row count.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct LevelCount {
+    /// The class as written in the data (banded attributes: the band).
     pub label: String,
     /// `null` when the count is below `min_cell` (suppressed).
     pub count: Option<u64>,
 }
 
+/// Everything found for one protected attribute (`scan::scan_attribute`).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct ProtectedResult {
+    /// The protected attribute's column (or the intersection's name).
     pub protected: String,
     /// `binary` or `multiclass`.
     pub kind: String,
+    /// Its classes with their counts (small counts suppressed).
     pub levels: Vec<LevelCount>,
     /// The class scored as positive for binary AUCs.
     pub positive: Option<String>,
@@ -130,45 +165,68 @@ pub struct ProtectedResult {
     pub entropy_nats: f64,
     /// The one-sentence answer to "does dropping the attribute hide it?".
     pub headline: String,
+    /// Every feature alone (`scan::singles::scan_singles`), highest AUC first.
     pub features: Vec<FeatureResult>,
+    /// Scanned pairs (`scan::pairs::scan_pairs`), highest gain first.
     pub pairs: Vec<PairResult>,
+    /// The whole feature set (`scan::whole::scan_whole_set`); `null` when not run.
     pub whole_set: Option<WholeSet>,
 }
 
 /// An AUC with its 95% DeLong interval and standard error.
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq)]
 pub struct AucInterval {
+    /// Out-of-fold AUC (`stats::auc::delong`, or macro one-vs-rest for more classes).
     pub auc: f64,
+    /// Lower end of the 95% interval.
     pub auc_low: f64,
+    /// Upper end of the 95% interval.
     pub auc_high: f64,
+    /// Standard error behind the interval.
     pub auc_se: f64,
 }
 
+/// One feature alone against the protected attribute (`scan::singles::scan_feature`).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct FeatureResult {
+    /// The column's name.
     pub name: String,
+    /// How the column was read (`data::FeatureKind::as_str`).
     pub kind: String,
+    /// Encoded levels (categories, or bins of a numeric column), missing included.
     pub levels: u32,
+    /// Share of rows where the feature is missing.
     pub missing_fraction: f64,
+    /// Plug-in mutual information I(X;A) of the encoded feature, nats (`stats::information::summarize`).
     pub mi_nats: f64,
+    /// The same with Miller–Madow's bias correction.
     pub mi_mm_nats: f64,
+    /// Adjusted mutual information (Vinh, Epps & Bailey 2010): ≈ 0 for chance agreement.
     pub ami: f64,
+    /// Normalised mutual information (arithmetic mean of the entropies).
     pub nmi: f64,
+    /// H(A) minus the frequency surrogate's held-out log-loss, nats (`stats::heldout::heldout_information`).
     pub heldout_info_nats: Option<f64>,
+    /// Out-of-fold AUC of the reported surrogate (`scan::evaluate::evaluate`).
     pub auc: Option<f64>,
+    /// Lower end of its 95% interval.
     pub auc_low: Option<f64>,
+    /// Upper end of its 95% interval.
     pub auc_high: Option<f64>,
     /// DeLong standard error of `auc` (lets `diff` test changes).
     pub auc_se: Option<f64>,
     /// Hand & Till's M, multi-class attributes only.
     pub hand_till: Option<f64>,
+    /// Balanced error rate of the class-balanced decision on the out-of-fold scores (`stats::ber::balanced_error_rate`).
     pub ber: Option<f64>,
+    /// The surrogate whose AUC is reported (`frequency`, `logistic`, `tree`).
     pub surrogate: Option<String>,
     /// Out-of-fold AUC of every surrogate tried.
     pub surrogates: BTreeMap<String, f64>,
     /// The same with intervals, for `explain` and the HTML report.
     #[serde(default)]
     pub surrogate_intervals: BTreeMap<String, AucInterval>,
+    /// The verdict (`scan::flag_for`, or a policy's thresholds).
     pub flag: Flag,
     /// Set when a review policy accepts this feature.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -194,31 +252,52 @@ pub struct LevelComposition {
     pub shares: Vec<Option<f64>>,
 }
 
+/// Two features together (`scan::pairs::evaluate_pairs`): the frequency
+/// surrogate over their joint codes.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct PairResult {
+    /// The two features, in column order.
     pub features: [String; 2],
+    /// Out-of-fold AUC of the pair surrogate.
     pub auc: f64,
+    /// Lower end of its 95% interval.
     pub auc_low: f64,
+    /// Upper end of its 95% interval.
     pub auc_high: f64,
+    /// Standard error behind the interval.
     pub auc_se: f64,
     /// AUC of the pair minus the better single feature's AUC.
     pub gain: f64,
+    /// H(A) minus the pair surrogate's held-out log-loss, nats.
     pub heldout_info_nats: Option<f64>,
+    /// The pair rule (`scan::pair_flag`).
     pub flag: Flag,
 }
 
+/// The boosted attacker on every feature (`scan::whole::scan_whole_set`).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct WholeSet {
+    /// Out-of-fold AUC of the attacker on all features.
     pub auc: f64,
+    /// Lower end of its 95% interval.
     pub auc_low: f64,
+    /// Upper end of its 95% interval.
     pub auc_high: f64,
+    /// Standard error behind the interval.
     pub auc_se: f64,
+    /// Balanced error rate of its out-of-fold scores.
     pub ber: f64,
+    /// Hand & Till's M, multi-class attributes only.
     pub hand_till: Option<f64>,
+    /// The attacker's name (`boosted`).
     pub surrogate: String,
+    /// Feature columns the attacker saw (joint pair columns not counted).
     pub features_used: usize,
+    /// ROC curve points of the attacker, thinned to at most 101.
     pub roc: Option<Vec<[f64; 2]>>,
+    /// The attacker refitted without each feature, in turn (`scan::whole::ablation`).
     pub drop_one: Vec<DropOne>,
+    /// Features to remove, in order, until the AUC is below the target (`scan::whole::removal_plan`).
     pub removal_plan: Vec<RemovalStep>,
     /// Whether the removal plan brought the AUC below the target.
     pub target_reached: bool,
@@ -236,11 +315,16 @@ fn ran() -> bool {
     true
 }
 
+/// The whole-set attacker without one feature.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct DropOne {
+    /// The feature left out.
     pub feature: String,
+    /// Out-of-fold AUC without it.
     pub auc: f64,
+    /// Lower end of its 95% interval.
     pub auc_low: f64,
+    /// Upper end of its 95% interval.
     pub auc_high: f64,
     /// Whole-set AUC minus this AUC.
     pub delta: f64,
@@ -248,61 +332,97 @@ pub struct DropOne {
     pub p_value: Option<f64>,
 }
 
+/// One step of the removal plan.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct RemovalStep {
+    /// The feature removed at this step.
     pub remove: String,
+    /// Whole-set AUC once it and every earlier step's feature are removed.
     pub auc_after: f64,
+    /// Lower end of its 95% interval.
     pub auc_low: f64,
+    /// Upper end of its 95% interval.
     pub auc_high: f64,
 }
 
+/// A column left out of the scan (`data::prepare::encode_table`).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct SkippedColumnInfo {
+    /// The column's name.
     pub name: String,
+    /// Why: constant, all missing, excluded, outcome...
     pub reason: String,
 }
 
 /// A policy acceptance applied to a feature.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct Acceptance {
+    /// Why the feature is kept despite its flag.
     pub reason: String,
+    /// Who accepted it.
     pub reviewer: String,
+    /// Last day the acceptance holds, `YYYY-MM-DD`.
     pub expires: String,
     /// False when the acceptance has expired (it then counts as not accepted).
     pub active: bool,
 }
 
+/// A review policy applied to the report (`review::policy::Policy::apply`).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct PolicyOutcome {
+    /// The policy file's name.
     pub file: String,
+    /// SHA-256 of the policy's text.
     pub sha256: String,
+    /// The day (UTC) expiries were judged against.
     pub evaluated_on: String,
+    /// `protected/feature` of every active acceptance.
     pub accepted_features: Vec<String>,
+    /// `protected/feature` of every expired acceptance.
     pub expired_acceptances: Vec<String>,
+    /// What fails the gate (`review::gate::gate_failures`); empty means it passes.
     pub failing: Vec<String>,
 }
 
 /// What a newly joined source adds to the existing features.
+/// What a newly joined source adds to the existing features
+/// (`pipeline::screen_with_source`; counts from `data::join::attach_source`).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct AddedSource {
+    /// The new source's file name.
     pub source: String,
+    /// SHA-256 of its bytes.
     pub sha256: String,
+    /// The key column shared with the base file (never a feature).
     pub key: String,
+    /// Columns the source adds.
     pub new_columns: Vec<String>,
+    /// Rows of the base file.
     pub base_rows: usize,
+    /// Base rows whose key the source has.
     pub matched_rows: usize,
+    /// Base rows whose key the source lacks.
     pub unmatched_base_rows: usize,
+    /// Source rows whose key the base lacks.
     pub unmatched_source_rows: usize,
+    /// Repeated keys in the source (the first row of each is used).
     pub duplicate_keys_in_source: usize,
+    /// Repeated keys in the base file.
     pub duplicate_keys_in_base: usize,
+    /// The whole-set AUC without and with the new columns, per attribute (`scan::added_source_effects`).
     pub per_protected: Vec<AddedSourceEffect>,
 }
 
+/// The whole-set attacker without and with the new columns, on the same rows.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct AddedSourceEffect {
+    /// The protected attribute.
     pub protected: String,
+    /// AUC from the base features alone.
     pub auc_without: AucInterval,
+    /// AUC with the new columns as well.
     pub auc_with: AucInterval,
+    /// `auc_with − auc_without`.
     pub difference: f64,
     /// DeLong's test of the difference; `null` when the base has no features.
     pub p_value: Option<f64>,

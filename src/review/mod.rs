@@ -3,6 +3,7 @@
 //! finished [`crate::report::Report`] values and never touch the data.
 
 pub mod diff;
+pub mod gate;
 pub mod policy;
 
 pub use diff::{

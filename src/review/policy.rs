@@ -3,8 +3,9 @@
 //! policy to a report marks the accepted features, re-flags with the policy's
 //! thresholds and lists what still fails, which decides the exit status.
 
-use crate::report::{Acceptance, Flag, PolicyOutcome, Report, Thresholds};
-use crate::scan::flag_for;
+use super::gate::gate_failures;
+use crate::report::{Acceptance, PolicyOutcome, Report, Thresholds};
+use crate::scan::{flag_for, pair_flag};
 use serde::Deserialize;
 use sha2::{Digest, Sha256};
 use std::ops::Range;
@@ -58,6 +59,7 @@ impl PolicyThresholds {
             proxy_auc_low: self.proxy_auc_low.unwrap_or(base.proxy_auc_low),
             review_auc_low: self.review_auc_low.unwrap_or(base.review_auc_low),
             review_ami: self.review_ami.unwrap_or(base.review_ami),
+            whole_set_auc_low: self.whole_set_auc_low.unwrap_or(base.whole_set_auc_low),
         }
     }
 }
@@ -175,6 +177,7 @@ impl Policy {
             "today must be YYYY-MM-DD: {today}"
         );
         clear_acceptances(report);
+        report.settings.thresholds = self.thresholds.applied_to(report.settings.thresholds);
         if self.thresholds.overrides_flags() {
             self.reflag(report);
         }
@@ -185,22 +188,20 @@ impl Policy {
             evaluated_on: today.to_string(),
             accepted_features: acceptances(report, true),
             expired_acceptances: acceptances(report, false),
-            failing: self.failing_items(report),
+            failing: gate_failures(report),
         };
         report.policy = Some(outcome.clone());
         outcome
     }
 
     fn reflag(&self, report: &mut Report) {
-        let thresholds = self.thresholds.applied_to(report.settings.thresholds);
-        report.settings.thresholds = thresholds;
+        let thresholds = report.settings.thresholds;
         for result in &mut report.results {
             for feature in &mut result.features {
                 feature.flag = flag_for(feature.auc_low, feature.ami, &thresholds);
             }
             for pair in &mut result.pairs {
-                // Pairs carry no AMI: they are judged on their AUC interval alone.
-                pair.flag = flag_for(Some(pair.auc_low), f64::NEG_INFINITY, &thresholds);
+                pair.flag = pair_flag(pair.auc_low, &thresholds);
             }
         }
         report.notes.push(format!(
@@ -241,44 +242,6 @@ impl Policy {
             "warning: {} line {}: acceptance of feature `{}`{scope} matches no feature in the report",
             self.file, rule.line, rule.feature
         )
-    }
-
-    fn failing_items(&self, report: &Report) -> Vec<String> {
-        let thresholds = report.settings.thresholds;
-        report
-            .results
-            .iter()
-            .flat_map(|result| {
-                let proxies = result
-                    .features
-                    .iter()
-                    .filter(|f| {
-                        f.flag == Flag::Proxy && !f.accepted.as_ref().is_some_and(|a| a.active)
-                    })
-                    .map(move |f| {
-                        format!(
-                            "{}/{}: proxy, AUC lower bound {} ≥ {} and not accepted",
-                            result.protected,
-                            f.name,
-                            f.auc_low
-                                .map_or_else(|| "n/a".into(), |v| format!("{v:.3}")),
-                            thresholds.proxy_auc_low
-                        )
-                    });
-                let whole = self
-                    .thresholds
-                    .whole_set_auc_low
-                    .zip(result.whole_set.as_ref())
-                    .filter(|(limit, w)| w.auc_low >= *limit)
-                    .map(|(limit, w)| {
-                        format!(
-                            "{}/whole set: AUC lower bound {:.3} ≥ {limit}",
-                            result.protected, w.auc_low
-                        )
-                    });
-                proxies.chain(whole).collect::<Vec<_>>()
-            })
-            .collect()
     }
 }
 

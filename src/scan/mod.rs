@@ -13,7 +13,7 @@ mod verdict;
 mod whole;
 
 pub use progress::{Progress, Silent};
-pub use verdict::{flag_for, gate_failures};
+pub use verdict::{flag_for, pair_flag};
 
 use crate::data::{EncodedTable, ProtectedAttribute};
 use crate::report::{LevelCount, ProtectedResult, Thresholds};
@@ -123,12 +123,7 @@ fn scan_attribute(
     );
     ProtectedResult {
         protected: attribute.name.clone(),
-        kind: if attribute.is_binary() {
-            "binary"
-        } else {
-            "multiclass"
-        }
-        .to_string(),
+        kind: attribute.kind().to_string(),
         levels: attribute
             .labels
             .iter()

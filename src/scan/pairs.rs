@@ -2,7 +2,7 @@
 //! and the pair's gain over the better of its two members.
 
 use super::evaluate::{Target, evaluate};
-use super::verdict::flag_for;
+use super::verdict::pair_flag;
 use super::{PairMode, Progress, ScanOptions};
 use crate::data::{EncodedColumn, FeatureKind};
 use crate::report::{FeatureResult, PairResult};
@@ -129,7 +129,7 @@ pub fn evaluate_pairs(
                 auc_se: interval.auc_se,
                 gain: interval.auc - better_single,
                 heldout_info_nats: Some(evaluation.heldout_info_nats),
-                flag: flag_for(Some(interval.auc_low), 0.0, &options.thresholds),
+                flag: pair_flag(interval.auc_low, &options.thresholds),
             })
         })
         .collect();

@@ -18,6 +18,13 @@ pub fn flag_for(auc_low: Option<f64>, ami: f64, t: &Thresholds) -> Flag {
     }
 }
 
+/// The pair rule: pairs carry no AMI, so they are judged on their AUC
+/// interval alone. Shared by the pair scan and by review policies.
+#[must_use]
+pub fn pair_flag(auc_low: f64, t: &Thresholds) -> Flag {
+    flag_for(Some(auc_low), f64::NEG_INFINITY, t)
+}
+
 /// The one-sentence answer to "does dropping the attribute hide it?".
 #[must_use]
 pub fn headline(
@@ -51,32 +58,4 @@ pub fn headline(
         ),
         None => format!("Whole-set attack on `{protected}` not run{named}."),
     }
-}
-
-/// What makes a scan fail its gate: features flagged proxy (unless an active
-/// policy acceptance covers them) and a whole-set interval whose lower bound
-/// reaches `whole_set_auc_low`. Empty means the scan passes.
-#[must_use]
-pub fn gate_failures(report: &crate::report::Report, whole_set_auc_low: f64) -> Vec<String> {
-    let mut failures = Vec::new();
-    for result in &report.results {
-        for feature in &result.features {
-            let accepted = feature.accepted.as_ref().is_some_and(|a| a.active);
-            if feature.flag == Flag::Proxy && !accepted {
-                failures.push(format!(
-                    "`{}` is a proxy for `{}`",
-                    feature.name, result.protected
-                ));
-            }
-        }
-        if let Some(whole) = &result.whole_set
-            && whole.auc_low >= whole_set_auc_low
-        {
-            failures.push(format!(
-                "the whole feature set rebuilds `{}` (AUC lower bound {:.3} ≥ {:.2})",
-                result.protected, whole.auc_low, whole_set_auc_low
-            ));
-        }
-    }
-    failures
 }

@@ -7,6 +7,8 @@
 pub mod boosted;
 pub mod frequency;
 pub mod logistic;
+#[cfg(test)]
+mod oracles;
 pub mod tree;
 
 pub use boosted::BoostedSurrogate;
