@@ -9,6 +9,7 @@ pub mod cli;
 pub mod data;
 pub mod error;
 pub mod keys;
+pub mod outputs;
 pub mod pipeline;
 pub mod report;
 pub mod review;

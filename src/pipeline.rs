@@ -8,6 +8,8 @@ use crate::data::join::attach_source;
 use crate::data::load::{self, FileSummary, LoadOptions};
 use crate::data::prepare::{self, EncodeOptions, Roles};
 use crate::error::InputError;
+use crate::outputs::input::{ScoredSpec, read_scored};
+use crate::outputs::{OutputsOptions, OutputsReport};
 use crate::report::explanation::Explanation;
 use crate::report::{AddedSource, DatasetInfo, Report};
 use crate::review::gate::gate_failures;
@@ -282,4 +284,25 @@ fn file_name(path: &Path) -> String {
         || path.display().to_string(),
         |n| n.to_string_lossy().to_string(),
     )
+}
+
+/// A finished evaluation of a model's outputs and what makes it fail its gate.
+#[derive(Debug, Clone)]
+#[must_use]
+pub struct OutputsEvaluation {
+    pub report: OutputsReport,
+    /// Reasons the evaluation fails (see [`crate::outputs::gate_failures`]); empty when it passes.
+    pub failures: Vec<String>,
+}
+
+/// Evaluates a trained model's scored file (`outputs`): read, evaluate, gate.
+pub fn evaluate_outputs(
+    spec: &ScoredSpec,
+    options: &OutputsOptions,
+    command: String,
+) -> Result<OutputsEvaluation, InputError> {
+    let data = read_scored(spec)?;
+    let report = crate::outputs::build_report(&data, spec, options, command);
+    let failures = crate::outputs::gate_failures(&report);
+    Ok(OutputsEvaluation { report, failures })
 }

@@ -19,6 +19,8 @@ fn table(community: &[u32], features: Vec<EncodedColumn>) -> EncodedTable {
             0,
         )],
         skipped: Vec::new(),
+        missing_tokens: Vec::new(),
+        readings: Vec::new(),
     }
 }
 

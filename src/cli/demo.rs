@@ -4,7 +4,7 @@ use super::Status;
 use super::data_args::command_line;
 use super::progress::TerminalProgress;
 use super::scan::{ScanSettingsArgs, emit};
-use crate::data::demo::{DemoSpec, demo_roles, encode_demo, generate};
+use crate::data::demo::{DemoSpec, demo_roles, encode_demo, generate, with_scores};
 use crate::data::prepare::EncodeOptions;
 use crate::pipeline::{self, ScreenOptions};
 use crate::report::DatasetInfo;
@@ -35,6 +35,9 @@ pub struct DemoArgs {
     /// Only write the generated data to this CSV file, for trying `telltale scan` on it.
     #[arg(long, value_name = "FILE")]
     pub write_data: Option<PathBuf>,
+    /// Only write the data with a model score, decision and outcome to this CSV file, for trying `telltale outputs`.
+    #[arg(long, value_name = "FILE", conflicts_with = "write_data")]
+    pub write_scored: Option<PathBuf>,
     /// Replace existing files.
     #[arg(long)]
     pub force: bool,
@@ -76,7 +79,23 @@ pub fn run(args: &DemoArgs) -> Result<Status> {
     };
     let mut data = generate(spec);
     if let Some(path) = &args.write_data {
-        return write_data(path, &mut data.frame, args.force);
+        write_csv(path, &mut data.frame, args.force)?;
+        println!(
+            "try: telltale scan {} --protected community",
+            path.display()
+        );
+        return Ok(Status::Clean);
+    }
+    if let Some(path) = &args.write_scored {
+        let mut scored = with_scores(data, args.seed);
+        write_csv(path, &mut scored.frame, args.force)?;
+        println!(
+            "try: telltale outputs {} --score approval_score --decision approved \\\n  \
+             --protected community --outcome repaid --segment product \\\n  \
+             --features branch_area,months_at_address,loan_amount,has_guarantor,commute_km",
+            path.display()
+        );
+        return Ok(Status::Clean);
     }
     let dir = match &args.report {
         Some(dir) => dir.clone(),
@@ -106,7 +125,7 @@ fn free_folder(base: &Path) -> PathBuf {
         .unwrap_or_else(|| base.to_path_buf())
 }
 
-fn write_data(path: &Path, frame: &mut polars::prelude::DataFrame, force: bool) -> Result<Status> {
+fn write_csv(path: &Path, frame: &mut polars::prelude::DataFrame, force: bool) -> Result<()> {
     if path.exists() && !force {
         bail!(
             "{}: file exists; pass --force to replace it",
@@ -118,11 +137,6 @@ fn write_data(path: &Path, frame: &mut polars::prelude::DataFrame, force: bool) 
     CsvWriter::new(&mut file)
         .finish(frame)
         .with_context(|| format!("{}: cannot write CSV", path.display()))?;
-    println!(
-        "wrote {} rows to {}; try: telltale scan {} --protected community",
-        frame.height(),
-        path.display(),
-        path.display()
-    );
-    Ok(Status::Clean)
+    println!("wrote {} rows to {}", frame.height(), path.display());
+    Ok(())
 }

@@ -6,6 +6,7 @@ mod demo;
 mod diff;
 mod explain;
 mod output;
+mod outputs;
 mod progress;
 mod scan;
 
@@ -35,6 +36,9 @@ enum Command {
     Explain(explain::ExplainArgs),
     /// Compare two reports: new proxies, flag changes, significant AUC changes.
     Diff(diff::DiffArgs),
+    /// After training: does the model's score stand in for the protected attribute, and do
+    /// selection and error rates differ by group?
+    Outputs(outputs::OutputsArgs),
     /// Generate the fictional demo dataset, scan it and write the report.
     Demo(demo::DemoArgs),
 }
@@ -53,6 +57,7 @@ pub fn run() -> ExitCode {
         Command::Scan(args) => scan::run(&args),
         Command::Explain(args) => explain::run(&args),
         Command::Diff(args) => diff::run(&args),
+        Command::Outputs(args) => outputs::run(&args),
         Command::Demo(args) => demo::run(&args),
     };
     match outcome {

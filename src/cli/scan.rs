@@ -153,7 +153,7 @@ pub fn run(args: &ScanArgs) -> Result<Status> {
     let progress = TerminalProgress::with_timings(args.data.quiet, args.data.timings);
     let policy = args.policy.as_deref().map(Policy::load).transpose()?;
     let options = args.data.screen_options(&args.settings, policy)?;
-    check_outputs(args)?;
+    check_outputs(args.report.as_ref(), args.json.as_ref(), args.force)?;
     let screening = match (&args.add_source, &args.key) {
         (Some(source), Some(key)) => {
             pipeline::screen_with_source(&args.data.data, source, key, &options, &progress)?
@@ -200,11 +200,11 @@ fn floor_pass(table: &crate::data::EncodedTable) -> f64 {
 }
 
 /// Refuses up front to overwrite outputs, so no time is spent scanning first.
-fn check_outputs(args: &ScanArgs) -> Result<()> {
-    if args.force {
+pub fn check_outputs(report: Option<&PathBuf>, json: Option<&PathBuf>, force: bool) -> Result<()> {
+    if force {
         return Ok(());
     }
-    if let Some(dir) = &args.report {
+    if let Some(dir) = report {
         let existing = dir.join(JsonRenderer.file_name());
         if existing.exists() {
             bail!(
@@ -213,11 +213,7 @@ fn check_outputs(args: &ScanArgs) -> Result<()> {
             );
         }
     }
-    if let Some(path) = args
-        .json
-        .as_ref()
-        .filter(|p| p.as_os_str() != "-" && p.exists())
-    {
+    if let Some(path) = json.filter(|p| p.as_os_str() != "-" && p.exists()) {
         bail!(
             "{}: file exists; pass --force to replace it",
             path.display()

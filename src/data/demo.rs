@@ -224,6 +224,92 @@ fn bayes_log_odds(
     area_term + commute_term + pair_term + missing_term
 }
 
+/// Branches 0–11 (Ashcombe, Brindle Cross and Corrowmere 1–2), used mostly by
+/// Valic applicants: the demo's scoring model penalises them.
+const PENALISED_BRANCHES: usize = 12;
+/// The scoring model's penalty on those branches, on the log-odds scale;
+/// repayment itself does not depend on the branch.
+pub const BRANCH_PENALTY: f64 = 0.8;
+/// Approved when the score reaches this.
+pub const APPROVAL_THRESHOLD: f64 = 0.75;
+
+/// Log-odds of repayment under the demo's planted outcome model: a
+/// guarantor helps, a larger loan (in sd of ln amount) hurts, a known
+/// address helps. Nothing here depends on the community.
+fn repayment_log_odds(guarantor: bool, ln_amount: f64, address_known: bool) -> f64 {
+    1.2 + 0.9 * f64::from(u8::from(guarantor)) - 0.6 * (ln_amount - 9.0) / 0.6
+        + 0.5 * f64::from(u8::from(address_known))
+}
+
+fn logistic(x: f64) -> f64 {
+    1.0 / (1.0 + (-x).exp())
+}
+
+/// Adds what a trained model and a later review would have to the demo data:
+/// `approval_score` (the model's probability of repayment, 4 decimals),
+/// `approved` (1 when the score is at least [`APPROVAL_THRESHOLD`]) and
+/// `repaid` (the observed outcome). The model is the planted repayment model
+/// of [`repayment_log_odds`] minus [`BRANCH_PENALTY`] for the branches most
+/// Valic applicants use, as a model trained on past decisions that
+/// penalised those branches would be: its score stands in for `community`
+/// through `branch_area`, and it under-predicts repayment there.
+#[must_use]
+pub fn with_scores(mut data: DemoData, seed: u64) -> DemoData {
+    let frame = &data.frame;
+    let text = |name: &str| -> Vec<Option<String>> {
+        frame
+            .column(name)
+            .ok()
+            .and_then(|c| {
+                c.str()
+                    .ok()
+                    .map(|s| s.iter().map(|v| v.map(str::to_string)).collect())
+            })
+            .unwrap_or_default()
+    };
+    let numbers = |name: &str| -> Vec<Option<f64>> {
+        frame
+            .column(name)
+            .ok()
+            .and_then(|c| c.f64().ok().map(|s| s.iter().collect()))
+            .unwrap_or_default()
+    };
+    let penalised: std::collections::HashSet<String> =
+        (0..PENALISED_BRANCHES).map(area_name).collect();
+    let branch = text("branch_area");
+    let guarantor = text("has_guarantor");
+    let amount = numbers("loan_amount");
+    let months = numbers("months_at_address");
+    let mut rng = SplitMix64::derive(seed, 1);
+    let mut score = Vec::with_capacity(branch.len());
+    let mut approved = Vec::with_capacity(branch.len());
+    let mut repaid = Vec::with_capacity(branch.len());
+    for row in 0..branch.len() {
+        let truth = repayment_log_odds(
+            guarantor[row].as_deref() == Some("yes"),
+            amount[row].unwrap_or(9.0_f64.exp()).ln(),
+            months[row].is_some(),
+        );
+        let penalty = branch[row]
+            .as_ref()
+            .filter(|b| penalised.contains(*b))
+            .map_or(0.0, |_| BRANCH_PENALTY);
+        let s = (logistic(truth - penalty) * 1e4).round() / 1e4;
+        score.push(s);
+        approved.push(i32::from(s >= APPROVAL_THRESHOLD));
+        repaid.push(i32::from(rng.next_f64() < logistic(truth)));
+    }
+    let columns = [
+        Column::from(Series::new("approval_score".into(), score)),
+        Column::from(Series::new("approved".into(), approved)),
+        Column::from(Series::new("repaid".into(), repaid)),
+    ];
+    for column in columns {
+        let _ = data.frame.with_column(column);
+    }
+    data
+}
+
 /// The demo's roles: `community` is the protected attribute, every other column a feature.
 #[must_use]
 pub fn demo_roles() -> super::prepare::Roles {

@@ -228,6 +228,16 @@ impl ProtectedAttribute {
         self.labels.len() == 2
     }
 
+    /// `binary` or `multiclass`, as reports name it.
+    #[must_use]
+    pub fn kind(&self) -> &'static str {
+        if self.is_binary() {
+            "binary"
+        } else {
+            "multiclass"
+        }
+    }
+
     /// The attribute on `rows` only (in that order), keeping its labels and positive class.
     #[must_use]
     pub fn select_rows(&self, rows: &[usize]) -> Self {

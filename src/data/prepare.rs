@@ -202,14 +202,14 @@ fn edit_distance(a: &str, b: &str) -> usize {
 }
 
 /// A column's values as read: text fields or numbers (`NaN` = missing).
-enum Values<'a> {
+pub(crate) enum Values<'a> {
     Text(Vec<Option<&'a str>>),
     Numbers(Vec<f64>),
 }
 
 /// The values of `column`, with fields matching a missing-value token read as
 /// missing; also returns how many fields each token made missing.
-fn values_of<'a>(
+pub(crate) fn values_of<'a>(
     path: &Path,
     column: &'a Column,
     missing: &MissingTokens,

@@ -159,12 +159,7 @@ fn scan_attribute(
     );
     let mut result = ProtectedResult {
         protected: attribute.name.clone(),
-        kind: if attribute.is_binary() {
-            "binary"
-        } else {
-            "multiclass"
-        }
-        .to_string(),
+        kind: attribute.kind().to_string(),
         levels: attribute
             .labels
             .iter()

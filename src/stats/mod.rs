@@ -1,14 +1,19 @@
-//! Pure estimators of leakage: contingency tables, information measures, AUC
-//! with DeLong intervals, balanced error rate, bootstrap. No files, no terminal.
+//! Pure estimators of leakage and disparity: contingency tables, information
+//! measures, AUC with DeLong intervals, balanced error rate, bootstrap, exact
+//! and score intervals for rates, Fisher's exact test. No files, no terminal.
 
 pub mod auc;
 pub mod ber;
 pub mod bootstrap;
 pub mod contingency;
+pub mod disparity;
+pub mod effect;
+pub mod fisher;
 pub mod fitting;
 pub mod heldout;
 pub mod information;
 pub mod multiclass;
+pub mod proportions;
 mod ranks;
 pub mod special;
 pub mod tables;
