@@ -39,6 +39,7 @@ fn feature(name: &str, auc: f64, se: f64, flag: Flag) -> FeatureResult {
         accepted: None,
         composition: None,
         roc: None,
+        outcome: None,
     }
 }
 
@@ -56,6 +57,8 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         drop_one: Vec::new(),
         removal_plan: Vec::new(),
         target_reached: false,
+        outcome: None,
+        protected_auc_within_outcome: None,
         ablation: true,
         ablation_rows: None,
     }
@@ -105,6 +108,7 @@ fn report(results: Vec<ProtectedResult>, sha256: &str) -> Report {
         skipped_columns: Vec::new(),
         added_source: None,
         policy: None,
+        outcome: None,
         notes: Vec::new(),
         caution: telltale::CAUTION.to_string(),
     }

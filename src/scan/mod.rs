@@ -6,6 +6,7 @@
 mod composition;
 mod evaluate;
 pub mod explain;
+mod outcome;
 mod pairs;
 pub mod progress;
 mod singles;
@@ -106,15 +107,22 @@ fn scan_attribute(
     progress: &dyn Progress,
 ) -> ProtectedResult {
     let target = Target::new(attribute, options.folds, options.seed);
-    let features = singles::scan_singles(&table.features, &target, options, progress);
+    let mut features = singles::scan_singles(&table.features, &target, options, progress);
     let pairs = pairs::scan_pairs(&table.features, &features, &target, options, progress);
-    let whole_set = options
+    let mut whole_set = options
         .whole_set
         .then(|| {
             let inputs = whole::AttackInputs::new(&table.features, &pairs);
             whole::scan_whole_set(&inputs, &target, options, progress)
         })
         .flatten();
+    if let Some(outcome) = &table.outcome {
+        let screen = outcome::OutcomeScan::new(outcome, &target, options);
+        screen.annotate_features(&table.features, &mut features, options, progress);
+        if let Some(whole) = whole_set.as_mut() {
+            (whole.outcome, whole.protected_auc_within_outcome) = screen.whole_set(&table.features);
+        }
+    }
     let headline = verdict::headline(
         &attribute.name,
         whole_set.as_ref(),
@@ -129,15 +137,7 @@ fn scan_attribute(
             "multiclass"
         }
         .to_string(),
-        levels: attribute
-            .labels
-            .iter()
-            .zip(&attribute.counts)
-            .map(|(label, &count)| LevelCount {
-                label: label.clone(),
-                count: (count as u64 >= options.min_cell).then_some(count as u64),
-            })
-            .collect(),
+        levels: level_counts(attribute, options.min_cell),
         positive: attribute
             .is_binary()
             .then(|| attribute.labels[attribute.positive as usize].clone()),
@@ -155,6 +155,19 @@ fn scan_attribute(
     }
 }
 
+/// Each class with its count; counts under `min_cell` suppressed.
+fn level_counts(attribute: &ProtectedAttribute, min_cell: u64) -> Vec<LevelCount> {
+    attribute
+        .labels
+        .iter()
+        .zip(&attribute.counts)
+        .map(|(label, &count)| LevelCount {
+            label: label.clone(),
+            count: (count as u64 >= min_cell).then_some(count as u64),
+        })
+        .collect()
+}
+
 /// Assembles the full report for a scanned table.
 #[must_use]
 pub fn build_report(
@@ -165,7 +178,9 @@ pub fn build_report(
     command: String,
     progress: &dyn Progress,
 ) -> crate::report::Report {
-    use crate::report::{Report, SCHEMA_VERSION, Settings, SkippedColumnInfo, ToolInfo};
+    use crate::report::{
+        OutcomeInfo, Report, SCHEMA_VERSION, Settings, SkippedColumnInfo, ToolInfo,
+    };
     let results = scan(table, options, progress);
     let mut notes = Vec::new();
     if !options.whole_set {
@@ -237,6 +252,12 @@ pub fn build_report(
             .collect(),
         added_source: None,
         policy: None,
+        outcome: table.outcome.as_ref().map(|outcome| OutcomeInfo {
+            column: outcome.name.clone(),
+            positive: outcome.labels[outcome.positive as usize].clone(),
+            levels: level_counts(outcome, options.min_cell),
+            rows_dropped_missing: outcome.dropped_missing,
+        }),
         notes,
         caution: crate::CAUTION.to_string(),
     }

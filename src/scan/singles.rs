@@ -138,6 +138,7 @@ fn scan_feature(
         composition: (flag != Flag::Clear)
             .then(|| composition(column, &table, target, options.min_cell)),
         roc: None,
+        outcome: None,
     };
     let roc = best_scores.map(|(_, scores)| roc(&scores, target));
     (result, roc)

@@ -121,6 +121,8 @@ pub fn scan_whole_set(
         drop_one,
         removal_plan,
         target_reached,
+        outcome: None,
+        protected_auc_within_outcome: None,
         ablation: options.ablation,
         ablation_rows,
     })
