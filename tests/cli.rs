@@ -1177,3 +1177,29 @@ fn demo_scored_file_shows_the_planted_branch_penalty() {
         "Valic repays more than Osmeric at the same score: {gaps:?}"
     );
 }
+
+/// The outcome screen needs a binary outcome; anything else is one line naming the column.
+#[test]
+fn a_non_binary_outcome_is_an_input_error() {
+    let dir = scratch("outcome-classes");
+    let mut data = String::from("group,area,grade\n");
+    for i in 0..60 {
+        let group = if i % 2 == 0 { "a" } else { "b" };
+        data.push_str(&format!(
+            "{group},{},{}\n",
+            i % 3,
+            ["low", "mid", "high"][i % 3]
+        ));
+    }
+    let file = write(&dir, "d.csv", data.as_bytes());
+    let out = telltale(&[
+        "scan",
+        &file,
+        "-p",
+        "group",
+        "--outcome",
+        "grade",
+        "--quiet",
+    ]);
+    assert_input_error(&out, &["d.csv", "`grade`", "exactly two values"]);
+}

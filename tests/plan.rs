@@ -21,6 +21,7 @@ fn table(community: &[u32], features: Vec<EncodedColumn>) -> EncodedTable {
         skipped: Vec::new(),
         missing_tokens: Vec::new(),
         readings: Vec::new(),
+        outcome: None,
     }
 }
 

@@ -43,6 +43,7 @@ fn feature(name: &str, auc: f64, se: f64, flag: Flag) -> FeatureResult {
         accepted: None,
         composition: None,
         roc: None,
+        outcome: None,
     }
 }
 
@@ -60,6 +61,8 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         drop_one: Vec::new(),
         removal_plan: Vec::new(),
         target_reached: false,
+        outcome: None,
+        protected_auc_within_outcome: None,
         ablation: true,
         ablation_rows: None,
         joint_columns: Vec::new(),
@@ -125,6 +128,7 @@ fn report(results: Vec<ProtectedResult>, sha256: &str) -> Report {
         reading: telltale::report::ReadingInfo::default(),
         added_source: None,
         policy: None,
+        outcome: None,
         notes: Vec::new(),
         caution: telltale::CAUTION.to_string(),
     }

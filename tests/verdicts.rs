@@ -133,6 +133,7 @@ fn table(protected: ProtectedAttribute, features: Vec<EncodedColumn>) -> Encoded
         skipped: Vec::new(),
         missing_tokens: Vec::new(),
         readings: Vec::new(),
+        outcome: None,
     }
 }
 

@@ -11,6 +11,8 @@
 //! | `rate_type`, `contact_channel` | leak only jointly: each is independent of `community`, their agreement is not |
 //! | `months_at_address` | missing far more often for one community; values themselves carry nothing |
 //! | `loan_amount`, `term_months`, `has_guarantor`, `product`, `noise_NN` | noise |
+//! | `income_k` | independent of `community`; predicts the outcome |
+//! | `approved` | the outcome: depends on `community`, `income_k` and `commute_km` |
 //!
 //! Every row is drawn given its community, so the true log-likelihood ratio of
 //! each row is known; [`DemoData::true_log_odds`] is the Bayes score, whose AUC
@@ -51,6 +53,8 @@ pub struct DemoData {
     pub frame: DataFrame,
     /// ln P(features | Valic) − ln P(features | Osmeric) for every row.
     pub true_log_odds: Vec<f64>,
+    /// The true log-odds of `approved` for every row (see [`APPROVAL_LOG_ODDS`]).
+    pub approval_log_odds: Vec<f64>,
 }
 
 /// Settings of the generator.
@@ -143,7 +147,7 @@ pub fn generate(spec: DemoSpec) -> DemoData {
     let mut columns = vec![
         text_column("community", &community),
         text_column("branch_area", &branch),
-        Column::from(Series::new("commute_km".into(), commute)),
+        Column::from(Series::new("commute_km".into(), commute.clone())),
         text_column(
             "application_ref",
             &refs
@@ -156,9 +160,52 @@ pub fn generate(spec: DemoSpec) -> DemoData {
         Column::from(Series::new("months_at_address".into(), months)),
     ];
     columns.extend(noise_columns(&mut rng, n, spec.extra_noise));
+    let outcome = outcome_columns(spec.seed, &community, &commute);
+    columns.extend(outcome.columns);
     DemoData {
         frame: DataFrame::new_infer_height(columns).unwrap_or_default(),
         true_log_odds: log_odds,
+        approval_log_odds: outcome.log_odds,
+    }
+}
+
+/// Log-odds of approval: intercept, the Valic shift (a disadvantage in the
+/// historical decisions), per standard deviation of `income_k`, and per
+/// kilometre of `commute_km` above 14.
+pub const APPROVAL_LOG_ODDS: [f64; 4] = [0.6, -0.9, 0.9, -0.06];
+
+/// The outcome and the feature that predicts it independently of `community`.
+struct OutcomeColumns {
+    columns: Vec<Column>,
+    log_odds: Vec<f64>,
+}
+
+/// Draws `income_k` (independent of `community`) and `approved` from their own
+/// stream, so the other columns are the same for a seed with or without them.
+/// `branch_area` predicts approval only through `community` (a pure proxy),
+/// `income_k` only by itself, `commute_km` both ways.
+fn outcome_columns(seed: u64, community: &[&str], commute: &[f64]) -> OutcomeColumns {
+    let mut rng = SplitMix64::new(seed ^ 0x5EED_0F_0A11);
+    let [intercept, valic, per_income_sd, per_km] = APPROVAL_LOG_ODDS;
+    let mut income = Vec::with_capacity(community.len());
+    let mut approved = Vec::with_capacity(community.len());
+    let mut log_odds = Vec::with_capacity(community.len());
+    for (&group, &km) in community.iter().zip(commute) {
+        let z = rng.normal();
+        let eta = intercept
+            + valic * f64::from(u8::from(group == "Valic"))
+            + per_income_sd * z
+            + per_km * (km - 14.0);
+        income.push(((48.0 + 11.0 * z) * 10.0).round() / 10.0);
+        approved.push(i64::from(rng.next_f64() < 1.0 / (1.0 + (-eta).exp())));
+        log_odds.push(eta);
+    }
+    OutcomeColumns {
+        columns: vec![
+            Column::from(Series::new("income_k".into(), income)),
+            Column::from(Series::new("approved".into(), approved)),
+        ],
+        log_odds,
     }
 }
 
@@ -315,6 +362,7 @@ pub fn with_scores(mut data: DemoData, seed: u64) -> DemoData {
 pub fn demo_roles() -> super::prepare::Roles {
     super::prepare::Roles {
         protected: vec!["community".to_string()],
+        outcome: Some("approved".to_string()),
         ..super::prepare::Roles::default()
     }
 }
@@ -354,7 +402,7 @@ mod tests {
             extra_noise: 2,
         });
         assert!(a.frame.equals_missing(&b.frame));
-        assert_eq!(a.frame.width(), 13);
+        assert_eq!(a.frame.width(), 15);
         let community = a.frame.column("community").unwrap().str().unwrap().clone();
         let valic = community.iter().filter(|v| *v == Some("Valic")).count();
         // Binomial(5000, 0.3): sd ≈ 32 rows, so ±130 rows is a 4-sd band.

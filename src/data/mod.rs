@@ -256,6 +256,15 @@ impl ProtectedAttribute {
         }
     }
 
+    /// The same attribute with `label` as its positive class, when it has that class.
+    #[must_use]
+    pub fn with_positive(mut self, label: &str) -> Self {
+        if let Some(k) = self.labels.iter().position(|l| l == label) {
+            self.positive = k as u32;
+        }
+        self
+    }
+
     /// 1 for rows of the positive class, else 0 (binary attributes).
     #[must_use]
     pub fn positive_indicator(&self) -> Vec<bool> {
@@ -300,6 +309,8 @@ pub struct EncodedTable {
     pub source_rows: usize,
     pub features: Vec<EncodedColumn>,
     pub protected: Vec<ProtectedAttribute>,
+    /// The binary outcome (`--outcome`), on the same rows; never a feature.
+    pub outcome: Option<ProtectedAttribute>,
     pub skipped: Vec<SkippedColumn>,
     /// The missing-value tokens in effect (empty when turned off).
     pub missing_tokens: Vec<String>,

@@ -269,7 +269,13 @@ pub fn encode_table(
     roles: &Roles,
     options: &EncodeOptions,
 ) -> Result<EncodedTable, InputError> {
-    let protected_frame = source.read(&plan.protected)?;
+    let targets: Vec<String> = plan
+        .protected
+        .iter()
+        .chain(&roles.outcome)
+        .cloned()
+        .collect();
+    let protected_frame = source.read(&targets)?;
     let source_rows = protected_frame.height();
     let mut readings = Vec::new();
     let mut labels: Vec<Vec<Option<String>>> = Vec::new();
@@ -289,11 +295,28 @@ pub fn encode_table(
             note: None,
         });
     }
+    let outcome_labels = roles
+        .outcome
+        .as_ref()
+        .map(|name| {
+            protected_labels(path, &protected_frame, name, None, &options.missing)
+                .map(|(labels, _)| labels)
+        })
+        .transpose()?;
     drop(protected_frame);
     let mut kept: Vec<usize> = (0..source_rows)
         .filter(|&r| labels.iter().all(|l| l[r].is_some()))
         .collect();
     let mut protected = build_protected(path, plan, &labels, &kept, roles.intersect)?;
+    let mut outcome_missing = 0;
+    if let Some(outcome) = &outcome_labels {
+        let before = kept.len();
+        kept.retain(|&r| outcome[r].is_some());
+        outcome_missing = before - kept.len();
+        if outcome_missing > 0 {
+            protected = build_protected(path, plan, &labels, &kept, roles.intersect)?;
+        }
+    }
     if kept.is_empty() {
         return Err(InputError::BadProtected {
             path: path.to_path_buf(),
@@ -310,6 +333,17 @@ pub fn encode_table(
     for attribute in &protected {
         check_protected(path, attribute, options)?;
     }
+    let outcome = match (&roles.outcome, &outcome_labels) {
+        (Some(name), Some(outcome)) => Some(build_outcome(
+            path,
+            name,
+            outcome,
+            &kept,
+            outcome_missing,
+            options,
+        )?),
+        _ => None,
+    };
     let rows = if kept.len() == source_rows {
         None
     } else {
@@ -364,6 +398,7 @@ pub fn encode_table(
         source_rows,
         features,
         protected,
+        outcome,
         skipped,
         missing_tokens: options.missing.tokens().to_vec(),
         readings,
@@ -681,6 +716,64 @@ fn attribute_from<'a>(
 ) -> ProtectedAttribute {
     let column = encode_levels(&name, FeatureKind::Categorical, values);
     ProtectedAttribute::from_codes(name, column.labels, column.codes, dropped)
+}
+
+/// Whether an outcome label reads as the positive outcome: the number 1, or
+/// `true`, `yes` or `y` in any case. With no such label, the rarer class is
+/// positive (as for protected attributes).
+fn reads_positive(label: &str) -> bool {
+    let lower = label.trim().to_lowercase();
+    matches!(lower.as_str(), "true" | "yes" | "y") || lower.parse::<f64>() == Ok(1.0)
+}
+
+/// The outcome on the kept rows: binary, each class with at least one row per fold.
+fn build_outcome(
+    path: &Path,
+    name: &str,
+    labels: &[Option<String>],
+    rows: &[usize],
+    dropped: usize,
+    options: &EncodeOptions,
+) -> Result<ProtectedAttribute, InputError> {
+    let mut outcome = attribute_from(
+        name.to_string(),
+        rows.iter().map(|&r| labels[r].as_deref()),
+        dropped,
+    );
+    if let Some(label) = outcome.labels.iter().find(|l| reads_positive(l)).cloned() {
+        outcome = outcome.with_positive(&label);
+    }
+    let bad = |reason: String| InputError::BadColumn {
+        path: path.to_path_buf(),
+        column: name.to_string(),
+        reason,
+    };
+    if !outcome.is_binary() {
+        return Err(bad(format!(
+            "the outcome must have exactly two values (e.g. 0/1); found {} ({}); \
+             multi-class and numeric outcomes are not supported yet",
+            outcome.n_classes(),
+            outcome
+                .labels
+                .iter()
+                .take(5)
+                .cloned()
+                .collect::<Vec<_>>()
+                .join(", ")
+        )));
+    }
+    if let Some((label, &count)) = outcome
+        .labels
+        .iter()
+        .zip(&outcome.counts)
+        .find(|(_, c)| **c < options.min_class_rows)
+    {
+        return Err(bad(format!(
+            "outcome `{label}` has only {count} rows; each outcome needs at least {} (one per fold)",
+            options.min_class_rows
+        )));
+    }
+    Ok(outcome)
 }
 
 fn check_protected(

@@ -36,6 +36,9 @@ pub struct Report {
     /// Outcome of the review policy, when one was given.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub policy: Option<PolicyOutcome>,
+    /// The outcome column, when `--outcome` was given.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outcome: Option<OutcomeInfo>,
     /// Statements about what was not computed and why.
     #[serde(default)]
     pub notes: Vec<String>,
@@ -275,10 +278,43 @@ pub struct FeatureResult {
     /// kept for flagged features so reviewers can see where the leakage sits.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub composition: Option<Vec<LevelComposition>>,
+    /// The feature against the outcome (`--outcome`): its value for the
+    /// outcome beside its leakage (`scan::outcome::feature_outcome`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outcome: Option<FeatureOutcome>,
     /// ROC curve points (false positive rate, true positive rate) of the best surrogate,
     /// thinned to at most 101 points; kept for the top features.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub roc: Option<Vec<[f64; 2]>>,
+}
+
+/// A feature's value for the outcome, and its leakage among people with the
+/// same outcome (`scan::outcome::feature_outcome`). `null` where not estimable.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct FeatureOutcome {
+    /// Out-of-fold AUC of the outcome from this feature alone (its utility):
+    /// the same surrogates, folds and intervals as the leakage AUCs.
+    pub auc: Option<f64>,
+    /// Lower end of its 95% interval.
+    pub auc_low: Option<f64>,
+    /// Upper end of its 95% interval.
+    pub auc_high: Option<f64>,
+    /// Outcome AUC from the protected attribute with this feature, minus from
+    /// the attribute alone (frequency surrogate, same rows and folds): the
+    /// outcome information the feature carries beyond the attribute.
+    pub gain_over_protected: Option<f64>,
+    /// Lower end of the gain's 95% interval (DeLong's paired test).
+    pub gain_low: Option<f64>,
+    /// Upper end of the gain's 95% interval.
+    pub gain_high: Option<f64>,
+    /// Leakage AUC within outcome strata: the frequency surrogate of the
+    /// attribute from the feature and the outcome, scored on pairs with the
+    /// same outcome only (`stats::auc::stratified_auc`); binary attributes.
+    pub protected_auc_within_outcome: Option<f64>,
+    /// Lower end of its 95% interval.
+    pub protected_auc_within_outcome_low: Option<f64>,
+    /// Upper end of its 95% interval.
+    pub protected_auc_within_outcome_high: Option<f64>,
 }
 
 /// One level (or bin) of a feature: how many rows and how they split by group.
@@ -355,6 +391,15 @@ pub struct WholeSet {
     pub drop_one: Vec<DropOne>,
     /// Features to remove, in order, until the AUC is below the target (`scan::whole::removal_plan`).
     pub removal_plan: Vec<RemovalStep>,
+    /// The boosted model's out-of-fold AUC for the outcome from every feature:
+    /// the business side of every trade-off (`scan::outcome::whole_set_outcome`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outcome: Option<AucInterval>,
+    /// The whole-set leakage among people with the same outcome: the boosted
+    /// attacker given every feature and the outcome, scored on pairs with the
+    /// same outcome only (binary attributes).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub protected_auc_within_outcome: Option<AucInterval>,
     /// Whether the removal plan brought the AUC below the target.
     pub target_reached: bool,
     /// Whether drop-one ablation and the removal plan were run (`--no-ablation` skips them).
@@ -562,4 +607,17 @@ pub struct AddedSourceEffect {
     pub difference: f64,
     /// DeLong's test of the difference; `null` when the base has no features.
     pub p_value: Option<f64>,
+}
+
+/// The outcome a screen weighs leakage against.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct OutcomeInfo {
+    /// The outcome column.
+    pub column: String,
+    /// The value counted as the positive outcome.
+    pub positive: String,
+    /// Its values with their counts (small counts suppressed).
+    pub levels: Vec<LevelCount>,
+    /// Rows dropped because the outcome was missing.
+    pub rows_dropped_missing: usize,
 }

@@ -57,6 +57,7 @@ fn feature(name: &str, kind: &str, auc: Option<f64>, ami: f64, flag: Flag) -> Fe
         accepted: None,
         composition: None,
         roc: None,
+        outcome: None,
     }
 }
 
@@ -178,6 +179,8 @@ fn whole_set() -> WholeSet {
             removal_step("income", 0.583),
         ],
         target_reached: true,
+        outcome: None,
+        protected_auc_within_outcome: None,
         ablation: true,
         ablation_rows: None,
         joint_columns: Vec::new(),
@@ -330,6 +333,7 @@ pub fn sample_report() -> Report {
             expired_acceptances: Vec::new(),
             failing: vec![PIPE_NAME.into()],
         }),
+        outcome: None,
         notes: vec!["customer_ref: AUC not computed (identifier-like column).".into()],
         caution: crate::CAUTION.into(),
     }

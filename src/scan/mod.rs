@@ -7,6 +7,7 @@ mod composition;
 mod evaluate;
 pub mod explain;
 mod joints;
+mod outcome;
 mod pairs;
 mod plan;
 pub mod progress;
@@ -135,7 +136,7 @@ fn scan_attribute(
     let target = Target::new(attribute, options.folds, options.seed);
     let mut features = singles::scan_singles(&table.features, &target, options, progress);
     let mut pairs = pairs::scan_pairs(&table.features, &features, &target, options, progress);
-    let whole_set = options
+    let mut whole_set = options
         .whole_set
         .then(|| {
             let joints = joints::nested_joints(&table.features, &target, options, progress);
@@ -144,6 +145,13 @@ fn scan_attribute(
             whole::scan_whole_set(&inputs, &target, options, &flagged, progress)
         })
         .flatten();
+    if let Some(outcome) = &table.outcome {
+        let screen = outcome::OutcomeScan::new(outcome, &target, options);
+        screen.annotate_features(&table.features, &mut features, options, progress);
+        if let Some(whole) = whole_set.as_mut() {
+            (whole.outcome, whole.protected_auc_within_outcome) = screen.whole_set(&table.features);
+        }
+    }
     let smallest = attribute.counts.iter().copied().min().unwrap_or(0);
     let flags_withheld = verdict::withheld_reason(smallest, options.min_class);
     if flags_withheld.is_some() {
@@ -160,15 +168,7 @@ fn scan_attribute(
     let mut result = ProtectedResult {
         protected: attribute.name.clone(),
         kind: attribute.kind().to_string(),
-        levels: attribute
-            .labels
-            .iter()
-            .zip(&attribute.counts)
-            .map(|(label, &count)| LevelCount {
-                label: label.clone(),
-                count: (count as u64 >= options.min_cell).then_some(count as u64),
-            })
-            .collect(),
+        levels: level_counts(attribute, options.min_cell),
         positive: attribute
             .is_binary()
             .then(|| attribute.labels[attribute.positive as usize].clone()),
@@ -226,6 +226,19 @@ fn flagged_features(
         .collect()
 }
 
+/// Each class with its count; counts under `min_cell` suppressed.
+fn level_counts(attribute: &ProtectedAttribute, min_cell: u64) -> Vec<LevelCount> {
+    attribute
+        .labels
+        .iter()
+        .zip(&attribute.counts)
+        .map(|(label, &count)| LevelCount {
+            label: label.clone(),
+            count: (count as u64 >= min_cell).then_some(count as u64),
+        })
+        .collect()
+}
+
 /// Assembles the full report for a scanned table.
 #[must_use]
 pub fn build_report(
@@ -236,7 +249,9 @@ pub fn build_report(
     command: String,
     progress: &dyn Progress,
 ) -> crate::report::Report {
-    use crate::report::{Report, SCHEMA_VERSION, Settings, SkippedColumnInfo, ToolInfo};
+    use crate::report::{
+        OutcomeInfo, Report, SCHEMA_VERSION, Settings, SkippedColumnInfo, ToolInfo,
+    };
     let results = scan(table, options, progress);
     let (reading, mut notes) = reading_info(table);
     if !options.whole_set {
@@ -323,6 +338,12 @@ pub fn build_report(
         reading,
         added_source: None,
         policy: None,
+        outcome: table.outcome.as_ref().map(|outcome| OutcomeInfo {
+            column: outcome.name.clone(),
+            positive: outcome.labels[outcome.positive as usize].clone(),
+            levels: level_counts(outcome, options.min_cell),
+            rows_dropped_missing: outcome.dropped_missing,
+        }),
         notes,
         caution: crate::CAUTION.to_string(),
     }

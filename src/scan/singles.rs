@@ -177,6 +177,7 @@ fn scan_feature(
         composition: matches!(flag, Flag::Proxy | Flag::Review)
             .then(|| composition(column, &table, target, options.min_cell)),
         roc: None,
+        outcome: None,
     };
     let roc = verdict.map(|(_, scores)| roc(&scores, target));
     (result, roc)

@@ -218,6 +218,8 @@ mod tests {
             plan_check: None,
             redundancy_groups: Vec::new(),
             plan_rule: String::new(),
+            outcome: None,
+            protected_auc_within_outcome: None,
         }
     }
 

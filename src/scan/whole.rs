@@ -160,6 +160,8 @@ pub fn scan_whole_set(
         drop_one: ablation.drop_one,
         removal_plan: ablation.plan.steps,
         target_reached: ablation.plan.reached,
+        outcome: None,
+        protected_auc_within_outcome: None,
         ablation: options.ablation,
         ablation_rows: ablation.rows,
         joint_columns: inputs
