@@ -132,6 +132,7 @@ impl DataArgs {
             numeric: self.numeric.clone(),
             bands,
             intersect: self.intersect,
+            features_optional: false,
         })
     }
 

@@ -33,6 +33,9 @@ pub struct Roles {
     pub bands: BTreeMap<String, Vec<f64>>,
     /// Adds the combination of all protected attributes as one more attribute.
     pub intersect: bool,
+    /// Whether a table without features is usable (`outputs` needs none;
+    /// a scan does, so for it zero usable features is an input error).
+    pub features_optional: bool,
 }
 
 /// Encoding settings.
@@ -134,7 +137,7 @@ pub fn plan_columns(
         .filter(|c| !not_feature.contains(c))
         .cloned()
         .collect();
-    if features.is_empty() {
+    if features.is_empty() && !roles.features_optional {
         return Err(InputError::Format {
             path: path.to_path_buf(),
             reason: "no feature column to scan: every column named is protected, the outcome \
@@ -390,7 +393,7 @@ pub fn encode_table(
             Err(skip) => skipped.push(skip),
         }
     }
-    if features.is_empty() {
+    if features.is_empty() && !roles.features_optional {
         return Err(no_usable_feature(path, &skipped));
     }
     readings.retain(ColumnReading::is_notable);

@@ -75,6 +75,7 @@ pub fn read_scored(spec: &ScoredSpec) -> Result<ScoredData, InputError> {
         .filter(|c| !features.contains(c))
         .collect();
     roles.features = Some(features);
+    roles.features_optional = true;
     let plan = prepare::plan_columns(path, &summary.columns, &roles)?;
     let mut needed = plan.needed();
     needed.extend(role_columns(spec));

@@ -78,6 +78,7 @@ fn protected_section<'a>(result: &'a ProtectedResult, report: &'a Report) -> Sec
         ),
         Block::Section(features_section(result, report)),
     ];
+    blocks.extend(outcome_section(result).map(Block::Section));
     blocks.extend(pairs_section(result).map(Block::Section));
     if let Some(whole) = &result.whole_set {
         blocks.push(Block::Section(whole_set_section(
@@ -193,6 +194,63 @@ fn roc_section<'a>(
     Some(Section::new("ROC curves", vec![figure]).full_only())
 }
 
+/// With an outcome: each feature's leakage beside its value for the outcome
+/// and its leakage among people with the same outcome (features in AUC order).
+fn outcome_section(result: &ProtectedResult) -> Option<Section<'static>> {
+    let ranked = format::ranked_features(result);
+    let rows: Vec<Row> = ranked
+        .iter()
+        .filter_map(|f| {
+            let o = f.outcome.as_ref()?;
+            let gain = match (o.gain_over_protected, o.gain_low, o.gain_high) {
+                (Some(g), Some(l), Some(h)) if l < h => format!(
+                    "{} [{}, {}]",
+                    format::signed(g, 3),
+                    format::signed(l, 3),
+                    format::signed(h, 3)
+                ),
+                (Some(g), _, _) => format!("{} [not estimable]", format::signed(g, 3)),
+                _ => format::NOT_COMPUTED.to_owned(),
+            };
+            Some(Row::from(vec![
+                Cell::name(&f.name),
+                Cell::plain(format::auc_interval(f.auc, f.auc_low, f.auc_high)),
+                Cell::plain(format::auc_interval(o.auc, o.auc_low, o.auc_high)),
+                Cell::plain(gain),
+                Cell::plain(format::auc_interval(
+                    o.protected_auc_within_outcome,
+                    o.protected_auc_within_outcome_low,
+                    o.protected_auc_within_outcome_high,
+                )),
+                Cell::verdict(f.flag),
+            ]))
+        })
+        .collect();
+    if rows.is_empty() {
+        return None;
+    }
+    let table = Table {
+        name: "outcome",
+        columns: vec![
+            Column::text("feature"),
+            Column::numeric("leakage AUC [95% CI]"),
+            Column::numeric("outcome AUC [95% CI]"),
+            Column::numeric("outcome gain over the attribute [95% CI]"),
+            Column::numeric("leakage within outcome [95% CI]"),
+            Column::text("flag"),
+        ],
+        rows,
+    };
+    let note = "A proxy whose outcome gain covers 0 carries nothing about the outcome that the \
+                protected attribute does not: the first to remove. A proxy with a gain above 0 \
+                needs a written justification, which is a legal judgment for the organisation \
+                and its counsel, not for this screen.";
+    Some(Section::new(
+        "Leakage and legitimate value",
+        vec![Block::Table(table), Block::paragraph(Role::Body, note)],
+    ))
+}
+
 fn pairs_section(result: &ProtectedResult) -> Option<Section<'_>> {
     if result.pairs.is_empty() {
         return None;
@@ -268,6 +326,24 @@ fn whole_set_section<'a>(
         whole.ber
     );
     let mut blocks = vec![Block::paragraph(Role::Body, summary)];
+    if let Some(outcome) = &whole.outcome {
+        let within = whole.protected_auc_within_outcome.as_ref().map_or_else(
+            || format::NOT_COMPUTED.to_owned(),
+            |w| format::auc_interval(Some(w.auc), Some(w.auc_low), Some(w.auc_high)),
+        );
+        blocks.push(Block::paragraph(
+            Role::Body,
+            format!(
+                "Outcome AUC from every feature: {}; leakage AUC among people with the same \
+                 outcome: {within}.",
+                format::auc_interval(
+                    Some(outcome.auc),
+                    Some(outcome.auc_low),
+                    Some(outcome.auc_high)
+                )
+            ),
+        ));
+    }
     blocks.extend(drop_one_section(whole).map(Block::Section));
     blocks.push(Block::Section(removal_section(whole, result, target_auc)));
     Section::new("Whole feature set", blocks)
