@@ -67,11 +67,13 @@ pub fn read_scored(spec: &ScoredSpec) -> Result<ScoredData, InputError> {
     let path = spec.path.as_path();
     let summary = load::inspect(path, spec.load)?;
     let mut roles = spec.roles.clone();
-    roles.outcome.clone_from(&spec.outcome);
+    roles.outcome = None;
     let features = roles.features.take().unwrap_or_default();
-    // A segment column may also be a feature; the score and decision never are.
+    // A segment column may also be a feature; the score, decision and
+    // outcome never are (the outcome is checked here, as 0/1).
     roles.exclude = role_columns(spec)
         .into_iter()
+        .chain(spec.outcome.iter().cloned())
         .filter(|c| !features.contains(c))
         .collect();
     roles.features = Some(features);
