@@ -185,7 +185,7 @@ struct OutcomeColumns {
 /// `branch_area` predicts approval only through `community` (a pure proxy),
 /// `income_k` only by itself, `commute_km` both ways.
 fn outcome_columns(seed: u64, community: &[&str], commute: &[f64]) -> OutcomeColumns {
-    let mut rng = SplitMix64::new(seed ^ 0x5EED_0F_0A11);
+    let mut rng = SplitMix64::new(seed ^ 0x005E_ED0F_0A11);
     let [intercept, valic, per_income_sd, per_km] = APPROVAL_LOG_ODDS;
     let mut income = Vec::with_capacity(community.len());
     let mut approved = Vec::with_capacity(community.len());

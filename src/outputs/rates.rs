@@ -252,14 +252,15 @@ pub fn mean_difference(
     candidates
         .into_iter()
         .filter_map(|g| {
-            let (inside, rest): (Vec<(f64, u32)>, Vec<(f64, u32)>) = score
-                .iter()
-                .zip(classes)
-                .map(|(&s, &c)| (s, c))
-                .partition(|&(_, c)| c as usize == g);
-            let values =
-                |rows: Vec<(f64, u32)>| rows.into_iter().map(|(s, _)| s).collect::<Vec<_>>();
-            let d = standardized_mean_difference(&values(inside), &values(rest))?;
+            let in_group = |inside: bool| -> Vec<f64> {
+                score
+                    .iter()
+                    .zip(classes)
+                    .filter(|&(_, &c)| (c as usize == g) == inside)
+                    .map(|(&s, _)| s)
+                    .collect()
+            };
+            let d = standardized_mean_difference(&in_group(true), &in_group(false))?;
             Some(MeanDifferenceResult {
                 group: labels[g].clone(),
                 smd: d.smd,

@@ -591,10 +591,10 @@ mod tests {
             let info = crate::stats::heldout_information(&scores.proba, k as usize, &target);
             assert!((pair.heldout_information() - info).abs() < 1e-9);
             assert!((pair.auc(&pair.counts, 1).unwrap() - from_rows).abs() < 1e-12);
-            for side in 0..2 {
+            for (side, column) in columns.iter().enumerate() {
                 let marginal = pair.marginal(side).unwrap();
                 let counts = marginal.counts(&pair.counts);
-                let single = row_auc(&[&columns[side]], &target, k as usize, &folds);
+                let single = row_auc(&[column], &target, k as usize, &folds);
                 assert!((marginal.table.auc(&counts, 1).unwrap() - single).abs() < 1e-12);
             }
         }
