@@ -6,7 +6,9 @@ use super::verdict::flag_for;
 use super::{PairMode, Progress, ScanOptions};
 use crate::data::{EncodedColumn, FeatureKind};
 use crate::report::{FeatureResult, PairResult};
-use crate::stats::fitting::{PAIR_REPLICATES, bootstrap_counts, from_replicates, stream_of};
+use crate::stats::fitting::{
+    PAIR_REPLICATES, bootstrap_counts, difference_from_replicates, from_replicates, stream_of,
+};
 use crate::surrogate::FrequencySurrogate;
 use crate::surrogate::count_table::{CountTable, Marginal};
 use rayon::prelude::*;
@@ -145,7 +147,7 @@ fn evaluate_pair(
     let fitted = super::singles::or_degenerate(fitted, target);
     // The gain's interval rests on the paired bootstrap alone, which errs on
     // the wide side: a joint effect is only claimed when it is clear.
-    let gain_fitted = from_replicates(gain, &column(1), None);
+    let gain_fitted = difference_from_replicates(gain, &column(1), None);
     Some(PairResult {
         features: [left.name.clone(), right.name.clone()],
         auc,

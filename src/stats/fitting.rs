@@ -127,6 +127,27 @@ pub fn from_replicates(
     }
 }
 
+/// [`from_replicates`] for a difference of two AUCs (a gain): the same
+/// interval, clamped to [−1, 1] instead of [0, 1], since a gain may be negative.
+#[must_use]
+pub fn difference_from_replicates(
+    point: f64,
+    replicates: &[f64],
+    fixed_model_variance: Option<f64>,
+) -> FittedAuc {
+    let fitted = from_replicates(point, replicates, fixed_model_variance);
+    let bound = |side: f64| {
+        fitted
+            .se
+            .map(|se| (point + side * Z_975 * se).clamp(-1.0, 1.0))
+    };
+    FittedAuc {
+        low: fitted.low.and(bound(-1.0)),
+        high: fitted.high.and(bound(1.0)),
+        ..fitted
+    }
+}
+
 /// The interval when every replicate gives the same AUC (resampling shows
 /// no spread: every score tied, or the classes perfectly separated in every
 /// fold). Perfect separation (AUC 1 or 0): the one-sided exact binomial
