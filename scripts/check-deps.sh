@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Fails when Cargo.toml declares a dependency the code never names.
 # A [dependencies] crate must be named (as `crate_name::` or `use crate_name`)
-# in src/; a [dev-dependencies] crate in src/, tests/ or benches/.
+# in src/; a [dev-dependencies] crate in src/, tests/ or scripts/.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
@@ -18,7 +18,7 @@ unused=0
 while read -r section name; do
     ident=${name//-/_}
     folders=(src)
-    [ "$section" = "[dev-dependencies]" ] && folders=(src tests benches)
+    [ "$section" = "[dev-dependencies]" ] && folders=(src tests scripts)
     if ! grep -rqE "(\b${ident}::|use ${ident}\b|${ident}!)" "${folders[@]}" 2>/dev/null; then
         echo "unused dependency: ${name} (${section}) is named nowhere in ${folders[*]}" >&2
         unused=1

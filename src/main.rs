@@ -1,5 +1,8 @@
-//! The `telltale` binary: parses the command line and hands over to the library.
+//! The `telltale` binary: the command-line front end. It parses flags and
+//! hands over to the library's public API (`telltale::pipeline` and friends).
+
+mod cli;
 
 fn main() -> std::process::ExitCode {
-    telltale::cli::run()
+    cli::run()
 }

@@ -14,8 +14,13 @@ use crate::report::explanation::Explanation;
 use crate::report::{AddedSource, DatasetInfo, Report};
 use crate::review::gate::gate_failures;
 use crate::review::policy::{Policy, today_utc};
-use crate::scan::{self, Progress, ScanOptions};
+use crate::scan;
 use std::path::Path;
+
+pub use crate::scan::explain::{ExplainError, explain as explain_table};
+pub use crate::scan::{
+    DEFAULT_MIN_CLASS, PairMode, Progress, ScanOptions, Silent, fitted_auc, scan as scan_table,
+};
 
 /// Folds a scan may use: at least two, and few enough that each keeps rows.
 const FOLDS: std::ops::RangeInclusive<usize> = 2..=50;
@@ -242,12 +247,12 @@ pub fn explain_file(
     let (_, table) = load_table(path, options, progress)?;
     (0..table.protected.len())
         .map(|index| {
-            scan::explain::explain(&table, index, feature, &options.scan, progress).map_err(
-                |error| InputError::Format {
+            explain_table(&table, index, feature, &options.scan, progress).map_err(|error| {
+                InputError::Format {
                     path: path.to_path_buf(),
                     reason: error.to_string(),
-                },
-            )
+                }
+            })
         })
         .collect()
 }

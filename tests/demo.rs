@@ -5,9 +5,9 @@
 use telltale::data::EncodedTable;
 use telltale::data::demo::{DemoSpec, encode_demo, generate};
 use telltale::data::prepare::EncodeOptions;
+use telltale::pipeline::{PairMode, ScanOptions, Silent, scan_table};
 use telltale::report::{Flag, ProtectedResult};
-use telltale::scan::{PairMode, ScanOptions, Silent, scan};
-use telltale::stats::auc::auc_from_scores;
+use telltale::stats::auc_from_scores;
 
 fn encoded(rows: usize, seed: u64) -> (EncodedTable, f64) {
     let data = generate(DemoSpec {
@@ -40,7 +40,7 @@ fn planted_proxies_are_found_and_decoys_are_clear() {
     // 20,000 rows: the DeLong SE of a near-chance AUC is about 0.005, so the
     // 0.55 / interval rules below are far from the planted values.
     let (table, bayes_auc) = encoded(20_000, 11);
-    let results = scan(&table, &ScanOptions::default(), &Silent);
+    let results = scan_table(&table, &ScanOptions::default(), &Silent);
     let r = &results[0];
     assert_eq!(feature(r, "branch_area").flag, Flag::Proxy);
 
@@ -101,7 +101,7 @@ fn same_seed_same_report_whatever_the_thread_count() {
             .num_threads(threads)
             .build()
             .unwrap();
-        let results = pool.install(|| scan(&table, &ScanOptions::default(), &Silent));
+        let results = pool.install(|| scan_table(&table, &ScanOptions::default(), &Silent));
         serde_json::to_string(&results).unwrap()
     };
     let one = run(1);
@@ -122,7 +122,7 @@ fn outcome_gain_separates_pure_proxies_from_independent_predictors() {
         whole_set: false,
         ..ScanOptions::default()
     };
-    let results = scan(&table, &options, &Silent);
+    let results = scan_table(&table, &options, &Silent);
     let r = &results[0];
     let proxy = feature(r, "branch_area");
     let value = proxy.outcome.as_ref().expect("outcome given");

@@ -2,11 +2,11 @@
 //! seeded data whose generating model is known: which features carry the
 //! protected attribute, which are copies of each other, which are noise.
 
+use telltale::data::demo::SplitMix64;
 use telltale::data::encode::{encode_levels, encode_numeric};
 use telltale::data::{EncodedColumn, EncodedTable, FeatureKind, ProtectedAttribute};
+use telltale::pipeline::{ScanOptions, Silent, scan_table};
 use telltale::report::{ProtectedResult, WholeSet};
-use telltale::rng::SplitMix64;
-use telltale::scan::{ScanOptions, Silent, scan};
 
 fn table(community: &[u32], features: Vec<EncodedColumn>) -> EncodedTable {
     EncodedTable {
@@ -104,7 +104,7 @@ fn redundant_proxies_are_removed_together() {
         ),
         encode_numeric("noise_3", shifted(&mut rng, &community, 0.0), 32),
     ];
-    let results = scan(
+    let results = scan_table(
         &table(&community, features),
         &ScanOptions::default(),
         &Silent,
@@ -163,7 +163,7 @@ fn an_additive_signal_needing_eight_removals_reaches_the_target() {
         "noise_b",
         &(0..rows).map(|_| rng.below(5)).collect::<Vec<_>>(),
     ));
-    let results = scan(
+    let results = scan_table(
         &table(&community, features),
         &ScanOptions::default(),
         &Silent,
@@ -195,7 +195,7 @@ fn a_feature_no_model_uses_gets_its_drop_one_value_without_a_refit() {
         target_auc: 1.01,
         ..ScanOptions::default()
     };
-    let results = scan(&table(&community, features), &options, &Silent);
+    let results = scan_table(&table(&community, features), &options, &Silent);
     let whole = whole(&results);
     let rare = whole
         .drop_one
@@ -233,7 +233,7 @@ fn noise_builds_no_joint_column() {
             ablation: false,
             ..ScanOptions::default()
         };
-        let results = scan(&table(&community, features), &options, &Silent);
+        let results = scan_table(&table(&community, features), &options, &Silent);
         assert!(
             whole(&results).joint_columns.is_empty(),
             "seed {seed}: {:?}",

@@ -6,8 +6,8 @@ use serde_json::Value;
 use std::fs;
 use std::path::PathBuf;
 use std::process::{Command, Output};
+use telltale::data::demo::SplitMix64;
 use telltale::data::demo::draw;
-use telltale::rng::SplitMix64;
 
 fn telltale(args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_telltale"))

@@ -1,12 +1,12 @@
 //! Calibration of the fitting-inclusive intervals and the verdicts built on
 //! them, on seeded synthetic data whose truth is known by construction.
 
+use telltale::data::demo::SplitMix64;
 use telltale::data::encode::{encode_levels, encode_numeric};
 use telltale::data::{EncodedColumn, EncodedTable, FeatureKind, ProtectedAttribute};
+use telltale::pipeline::{PairMode, ScanOptions, Silent, fitted_auc, scan_table};
 use telltale::report::Flag;
 use telltale::review::gate::gate_failures;
-use telltale::rng::SplitMix64;
-use telltale::scan::{PairMode, ScanOptions, Silent, fitted_auc, scan};
 
 /// A binary attribute of `rows` rows with exactly `minority` rows of class 1,
 /// at seeded random positions.
@@ -156,14 +156,11 @@ fn noise_report(
         rows_dropped_missing_protected: 0,
         sample: None,
     };
-    telltale::scan::build_report(
-        &table(group, features),
-        info,
-        options,
-        32,
-        String::new(),
-        &Silent,
-    )
+    let screen = telltale::pipeline::ScreenOptions {
+        scan: options.clone(),
+        ..Default::default()
+    };
+    telltale::pipeline::screen_table(&table(group, features), info, &screen, &Silent).report
 }
 
 #[test]
@@ -235,7 +232,7 @@ fn a_boolean_and_a_32_bin_numeric_with_the_same_auc_get_the_same_verdict() {
                 pairs: PairMode::None,
                 ..ScanOptions::default()
             };
-            let result = &scan(&data, &options, &Silent)[0];
+            let result = &scan_table(&data, &options, &Silent)[0];
             for f in &result.features {
                 assert_eq!(
                     f.flag, expected,
@@ -266,7 +263,7 @@ fn explain_names_no_partner_on_pure_noise() {
         };
         for feature in ["noise_01", "noise_02"] {
             let explained =
-                telltale::scan::explain::explain(&data, 0, feature, &options, &Silent).unwrap();
+                telltale::pipeline::explain_table(&data, 0, feature, &options, &Silent).unwrap();
             assert!(
                 !explained.paragraph.contains("Together with"),
                 "{seed} {feature}: {}",
@@ -316,7 +313,7 @@ fn monte_carlo_rates() {
                 pairs: PairMode::None,
                 ..ScanOptions::default()
             };
-            let f = &scan(&table(group, vec![column]), &options, &Silent)[0].features[0];
+            let f = &scan_table(&table(group, vec![column]), &options, &Silent)[0].features[0];
             let auc = f.auc.unwrap();
             let covers = |low: f64, high: f64| low <= *truth && *truth <= high;
             fitted += usize::from(f.auc_low.zip(f.auc_high).is_some_and(|(l, h)| covers(l, h)));
@@ -333,7 +330,7 @@ fn monte_carlo_rates() {
         );
     }
     for minority in [5, 10, 20] {
-        for min_class in [0, telltale::scan::DEFAULT_MIN_CLASS] {
+        for min_class in [0, telltale::pipeline::DEFAULT_MIN_CLASS] {
             let (mut sets_flagged, mut gate_failed, mut flags, mut tests) = (0, 0, 0, 0);
             let seeds = 20u64;
             for seed in 0..seeds {

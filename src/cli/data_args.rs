@@ -2,15 +2,15 @@
 //! it, and which column plays which role.
 
 use super::scan::ScanSettingsArgs;
-use crate::data::load::{FileFormat, LoadOptions};
-use crate::data::missing::MissingTokens;
-use crate::data::prepare::{EncodeOptions, Roles};
-use crate::pipeline::ScreenOptions;
-use crate::review::policy::Policy;
 use anyhow::{Context, Result, bail};
 use clap::{Args, ValueEnum};
 use std::collections::BTreeMap;
 use std::path::PathBuf;
+use telltale::data::load::{FileFormat, LoadOptions};
+use telltale::data::missing::MissingTokens;
+use telltale::data::prepare::{EncodeOptions, Roles};
+use telltale::pipeline::ScreenOptions;
+use telltale::review::policy::Policy;
 
 #[derive(Debug, Clone, Copy, ValueEnum)]
 pub enum FormatArg {

@@ -4,14 +4,14 @@ use super::Status;
 use super::data_args::command_line;
 use super::progress::TerminalProgress;
 use super::scan::{ScanSettingsArgs, emit};
-use crate::data::demo::{DemoSpec, demo_roles, encode_demo, generate, with_scores};
-use crate::data::prepare::EncodeOptions;
-use crate::pipeline::{self, ScreenOptions};
-use crate::report::DatasetInfo;
 use anyhow::{Context, Result, bail};
 use clap::Args;
 use polars::prelude::{CsvWriter, SerWriter};
 use std::path::{Path, PathBuf};
+use telltale::data::demo::{DemoSpec, demo_roles, encode_demo, generate, with_scores};
+use telltale::data::prepare::EncodeOptions;
+use telltale::pipeline::{self, ScreenOptions};
+use telltale::report::DatasetInfo;
 
 /// Default folder of the demo report; a free numbered sibling is used if it exists.
 const DEFAULT_DIR: &str = "telltale-demo";

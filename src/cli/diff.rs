@@ -2,13 +2,13 @@
 
 use super::Status;
 use super::output::write_one;
-use crate::review::diff::{
-    DEFAULT_MIN_EFFECT, compare, load_report, render_diff_markdown, render_diff_text,
-};
 use anyhow::{Result, bail};
 use clap::Args;
 use std::io::IsTerminal;
 use std::path::PathBuf;
+use telltale::review::diff::{
+    DEFAULT_MIN_EFFECT, compare, load_report, render_diff_markdown, render_diff_text,
+};
 
 #[derive(Debug, Args)]
 pub struct DiffArgs {

@@ -5,13 +5,13 @@ use super::data_args::DataArgs;
 use super::output::write_one;
 use super::progress::TerminalProgress;
 use super::scan::ScanSettingsArgs;
-use crate::pipeline;
-use crate::report::page::Backend;
-use crate::report::terminal::TerminalRenderer;
 use anyhow::{Context, Result};
 use clap::Args;
 use std::io::IsTerminal;
 use std::path::PathBuf;
+use telltale::pipeline;
+use telltale::report::page::Backend;
+use telltale::report::terminal::TerminalRenderer;
 
 #[derive(Debug, Args)]
 pub struct ExplainArgs {

@@ -1,10 +1,10 @@
 //! Writing report files: never overwriting a report the user did not ask to replace.
 
-use crate::report::{Renderer, Report};
 use anyhow::{Context, Result, bail};
 use std::fs;
 use std::io::Write;
 use std::path::Path;
+use telltale::report::{Renderer, Report};
 
 /// Writes every renderer's file into `dir`, refusing to replace existing ones unless `force`.
 pub fn write_report_dir(

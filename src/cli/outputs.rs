@@ -5,13 +5,13 @@ use super::Status;
 use super::data_args::{DataArgs, command_line};
 use super::output::write_one;
 use super::scan::check_outputs;
-use crate::data::prepare::EncodeOptions;
-use crate::outputs::input::{ScoredSpec, Selection};
-use crate::outputs::{OutputsOptions, OutputsReport, OutputsThresholds, terminal};
-use crate::pipeline;
 use anyhow::{Context, Result, bail};
 use clap::{ArgGroup, Args};
 use std::path::{Path, PathBuf};
+use telltale::data::prepare::EncodeOptions;
+use telltale::outputs::input::{ScoredSpec, Selection};
+use telltale::outputs::{OutputsOptions, OutputsReport, OutputsThresholds, terminal};
+use telltale::pipeline;
 
 #[derive(Debug, Args)]
 #[command(group(ArgGroup::new("selection").required(true).args(["decision", "threshold", "selection_rate"])))]

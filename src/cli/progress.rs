@@ -2,11 +2,11 @@
 //! With `--timings`, each stage's wall time is printed to standard error
 //! (used by the benchmark script).
 
-use crate::scan::Progress;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::IsTerminal;
 use std::sync::Mutex;
 use std::time::Instant;
+use telltale::pipeline::Progress;
 
 /// Draws one bar per stage on standard error when it is a terminal.
 pub struct TerminalProgress {

@@ -4,18 +4,18 @@ use super::Status;
 use super::data_args::DataArgs;
 use super::output::{write_one, write_report_dir};
 use super::progress::TerminalProgress;
-use crate::pipeline::{self, Screening};
-use crate::report::html::HtmlRenderer;
-use crate::report::json::JsonRenderer;
-use crate::report::markdown::MarkdownRenderer;
-use crate::report::terminal::TerminalRenderer;
-use crate::report::{Renderer, Report, Thresholds};
-use crate::review::policy::Policy;
-use crate::scan::{PairMode, ScanOptions};
 use anyhow::{Result, bail};
 use clap::{Args, ValueEnum};
 use std::io::IsTerminal;
 use std::path::PathBuf;
+use telltale::pipeline::{self, Screening};
+use telltale::pipeline::{PairMode, ScanOptions};
+use telltale::report::html::HtmlRenderer;
+use telltale::report::json::JsonRenderer;
+use telltale::report::markdown::MarkdownRenderer;
+use telltale::report::terminal::TerminalRenderer;
+use telltale::report::{Renderer, Report, Thresholds};
+use telltale::review::policy::Policy;
 
 #[derive(Debug, Clone, Copy, ValueEnum)]
 pub enum PairsArg {
@@ -42,7 +42,7 @@ pub struct ScanSettingsArgs {
     /// Smallest protected class (rows) for which AUC flags and the gate are
     /// issued; below it the report says why none are. The default is the
     /// class size at which an AUC of 0.80 clears the review line with 80% power.
-    #[arg(long, default_value_t = crate::scan::DEFAULT_MIN_CLASS, value_name = "ROWS")]
+    #[arg(long, default_value_t = telltale::pipeline::DEFAULT_MIN_CLASS, value_name = "ROWS")]
     pub min_class: u64,
     /// Fail (exit 1) when the whole-set AUC's lower bound reaches this.
     #[arg(long, default_value_t = 0.70)]
@@ -62,7 +62,7 @@ pub struct ScanSettingsArgs {
 
 impl ScanSettingsArgs {
     /// The scan's settings; validated with the rest by
-    /// [`ScreenOptions::validated`](crate::pipeline::ScreenOptions::validated).
+    /// [`ScreenOptions::validated`](telltale::pipeline::ScreenOptions::validated).
     pub fn options(&self, folds: usize, seed: u64, min_cell: u64) -> ScanOptions {
         ScanOptions {
             folds,
@@ -188,7 +188,7 @@ pub fn gate_status(screening: &Screening) -> Status {
 
 /// Seconds for one plain pass reading every encoded code once: the
 /// memory-bandwidth floor the benchmark compares the single-feature scan with.
-fn floor_pass(table: &crate::data::EncodedTable) -> f64 {
+fn floor_pass(table: &telltale::data::EncodedTable) -> f64 {
     let start = std::time::Instant::now();
     let total: u64 = table
         .features

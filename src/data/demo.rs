@@ -18,7 +18,9 @@
 //! each row is known; [`DemoData::true_log_odds`] is the Bayes score, whose AUC
 //! is the best any attacker can reach.
 
-use crate::rng::SplitMix64;
+/// The generator behind the demo's draws, public so that simulations can
+/// reproduce them.
+pub use crate::rng::SplitMix64;
 use polars::prelude::{Column, DataFrame, NamedFrom, Series};
 
 /// Share of applicants in the minority community (Valic).

@@ -6,13 +6,13 @@
 
 pub mod demo;
 pub mod encode;
-pub mod folds;
-pub mod join;
-pub mod kinds;
+pub(crate) mod folds;
+pub(crate) mod join;
+pub(crate) mod kinds;
 pub mod load;
 pub mod missing;
 pub mod prepare;
-pub mod sample;
+pub(crate) mod sample;
 
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;

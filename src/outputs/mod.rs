@@ -4,11 +4,11 @@
 //! [`input::read_scored`] reads a scored file; [`build_report`] turns it into
 //! an [`OutputsReport`]; [`gate_failures`] says which thresholds it exceeds.
 
-pub mod bands;
+pub(crate) mod bands;
 pub mod contract;
 pub mod input;
-pub mod proxy;
-pub mod rates;
+pub(crate) mod proxy;
+pub(crate) mod rates;
 pub mod terminal;
 
 pub use contract::*;

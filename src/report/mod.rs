@@ -4,15 +4,15 @@
 
 pub mod contract;
 pub mod explanation;
-pub mod format;
+pub(crate) mod format;
 pub mod html;
 pub mod json;
-pub mod layout;
+pub(crate) mod layout;
 pub mod markdown;
 pub mod page;
 #[cfg(test)]
 pub(crate) mod sample;
-pub mod svg;
+pub(crate) mod svg;
 pub mod terminal;
 
 pub use contract::*;

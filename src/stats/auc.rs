@@ -1,7 +1,7 @@
 //! Area under the ROC curve: Mann–Whitney point estimate, DeLong variance and
 //! interval, comparison of two AUCs, and the empirical ROC curve.
 
-use super::ranks::{order_key, score_of_key, sort_by_score, sorted_keys, tie_groups};
+use super::ranks::{order_key, sort_by_score, sorted_keys, tie_groups};
 use super::special::{Z_975, two_sided_p_value};
 use crate::keys::KeyIndex;
 
@@ -161,16 +161,6 @@ impl ScoreTable {
         self.keys.push(key);
         self.negatives.push(neg as u64);
         self.positives.push(pos as u64);
-    }
-
-    /// Number of categories (distinct scores).
-    pub fn len(&self) -> usize {
-        self.keys.len()
-    }
-
-    /// The score of `category`.
-    pub fn score(&self, category: usize) -> f64 {
-        score_of_key(self.keys[category])
     }
 }
 
@@ -473,14 +463,6 @@ pub fn cross_validated_compare(
     ))
 }
 
-/// Compares two AUCs estimated on independent samples (e.g. two reports):
-/// z = (θ̂_a − θ̂_b)/√(Var_a + Var_b) (Hanley & McNeil 1983, Radiology
-/// 148(3), eq. 1 with zero correlation).
-#[must_use]
-pub fn compare_independent(a: &AucEstimate, b: &AucEstimate) -> AucComparison {
-    AucComparison::from_variance(a.auc, b.auc, a.variance + b.variance)
-}
-
 /// Empirical ROC curve: (FPR, TPR) points from (0, 0) to (1, 1), one per
 /// distinct score threshold taken from the highest down (Fawcett 2006,
 /// Pattern Recogn. Lett. 27, Algorithm 2), thinned to at most `max_points`
@@ -615,17 +597,6 @@ mod tests {
     }
 
     #[test]
-    fn independent_comparison_sums_variances() {
-        // Hanley & McNeil (1983) eq. 1 with r = 0: SE(diff) = √(SE1² + SE2²); with the
-        // §2 values, √(0.102353² + 0.153862²) = 0.184798 (computed by hand from WORKED-EXAMPLES §2).
-        let a = delong(&S1, &Y).unwrap();
-        let b = delong(&S2, &Y).unwrap();
-        let cmp = compare_independent(&a, &b);
-        assert!((cmp.se - 0.184_798).abs() < 2e-6);
-        assert!(cmp.p_value > 0.4 && cmp.p_value < 0.5);
-    }
-
-    #[test]
     fn roc_curve_runs_corner_to_corner_and_thins() {
         // Fawcett (2006): the empirical ROC is a staircase from (0,0) to (1,1); its
         // trapezoidal area equals the Mann–Whitney AUC (Hanley & McNeil 1982, §II).
@@ -700,7 +671,7 @@ mod tests {
             prop_assert_eq!(&grouped.keys, &sorted.keys);
             prop_assert_eq!(&grouped.negatives, &sorted.negatives);
             prop_assert_eq!(&grouped.positives, &sorted.positives);
-            prop_assert!(ScoreTable::grouped(&scores, &positive, sorted.len() - 1).is_none());
+            prop_assert!(ScoreTable::grouped(&scores, &positive, sorted.keys.len() - 1).is_none());
         }
 
         // The AUC depends on the scores only through their order (Bamber 1975,

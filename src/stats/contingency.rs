@@ -35,54 +35,6 @@ impl Contingency {
         Self { rows, cols, counts }
     }
 
-    /// One table per stratum `z < z_levels` (e.g. per outcome value, for
-    /// outcome-conditioned measures), built in one O(N) pass.
-    ///
-    /// # Panics
-    /// As [`Contingency::from_codes`], and if `z` differs in length.
-    #[must_use]
-    pub fn from_codes_stratified(
-        x: &[u32],
-        x_levels: u32,
-        y: &[u32],
-        y_levels: u32,
-        z: &[u32],
-        z_levels: u32,
-    ) -> Vec<Self> {
-        assert_eq!(
-            x.len(),
-            z.len(),
-            "feature and stratum codes differ in length"
-        );
-        let (rows, cols) = (x_levels as usize, y_levels as usize);
-        let mut counts = vec![0u64; z_levels as usize * rows * cols];
-        for ((&a, &b), &s) in x.iter().zip(y).zip(z) {
-            assert!(
-                (s as usize) < z_levels as usize,
-                "stratum code out of range"
-            );
-            counts[s as usize * rows * cols + cell(a, b, rows, cols)] += 1;
-        }
-        if rows * cols == 0 {
-            return vec![
-                Self {
-                    rows,
-                    cols,
-                    counts: Vec::new()
-                };
-                z_levels as usize
-            ];
-        }
-        counts
-            .chunks(rows * cols)
-            .map(|chunk| Self {
-                rows,
-                cols,
-                counts: chunk.to_vec(),
-            })
-            .collect()
-    }
-
     /// A table from explicit rows of counts; short rows are padded with zeros.
     #[must_use]
     pub fn from_counts(rows: &[Vec<u64>]) -> Self {
@@ -133,20 +85,6 @@ impl Contingency {
     pub fn total(&self) -> u64 {
         self.counts.iter().sum()
     }
-
-    /// The same table with rows and columns swapped.
-    #[must_use]
-    pub fn transposed(&self) -> Self {
-        let counts = (0..self.cols)
-            .flat_map(|c| (0..self.rows).map(move |r| (r, c)))
-            .map(|(r, c)| self.get(r, c))
-            .collect();
-        Self {
-            rows: self.cols,
-            cols: self.rows,
-            counts,
-        }
-    }
 }
 
 /// Row-major index of cell (`a`, `b`), checking both codes.
@@ -171,22 +109,6 @@ mod tests {
         assert_eq!(t.row_totals(), vec![3, 0, 1]);
         assert_eq!(t.col_totals(), vec![2, 2]);
         assert_eq!(t.total(), 4);
-        assert_eq!(t.transposed().counts, vec![1, 0, 1, 2, 0, 0]);
-    }
-
-    #[test]
-    fn strata_partition_the_pooled_table() {
-        let x = [0, 1, 1, 0, 1];
-        let y = [0, 0, 1, 1, 1];
-        let z = [1, 0, 1, 1, 0];
-        let strata = Contingency::from_codes_stratified(&x, 2, &y, 2, &z, 2);
-        assert_eq!(strata[0].counts, vec![0, 0, 1, 1]);
-        assert_eq!(strata[1].counts, vec![1, 1, 0, 1]);
-        let pooled = Contingency::from_codes(&x, 2, &y, 2);
-        let summed: Vec<u64> = (0..4)
-            .map(|i| strata[0].counts[i] + strata[1].counts[i])
-            .collect();
-        assert_eq!(summed, pooled.counts);
     }
 
     #[test]

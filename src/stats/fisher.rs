@@ -28,18 +28,6 @@ pub fn fisher_exact_two_sided([[a, b], [c, d]]: [[u64; 2]; 2]) -> f64 {
         .min(1.0)
 }
 
-/// One-sided p-value P(top-left ≥ a) of Fisher's exact test (the
-/// alternative "odds ratio > 1", R `fisher.test(alternative = "greater")`).
-#[must_use]
-pub fn fisher_exact_greater([[a, b], [c, d]]: [[u64; 2]; 2]) -> f64 {
-    let law = Hypergeometric::of_table(a, b, c, d);
-    law.probabilities()
-        .iter()
-        .skip((a - law.low) as usize)
-        .sum::<f64>()
-        .min(1.0)
-}
-
 /// The distribution of the top-left count given a 2×2 table's margins.
 struct Hypergeometric {
     row1: u64,
@@ -86,13 +74,11 @@ mod tests {
     fn lady_tasting_tea() {
         // Fisher (1935), The Design of Experiments, ch. 2: 8 cups, 4 of each kind, 3 of the
         // 4 milk-first cups named correctly: [[3, 1], [1, 3]]. The hypergeometric
-        // probabilities of 0..4 correct are 1, 16, 36, 16, 1 out of 70, so the one-sided
-        // p-value is 17/70 = 0.2429 (R `fisher.test(tea, alternative = "greater")` prints
-        // p-value = 0.2429) and the two-sided one sums 1 + 16 + 16 + 1 = 34/70 = 0.4857.
+        // probabilities of 0..4 correct are 1, 16, 36, 16, 1 out of 70, so the two-sided
+        // p-value sums 1 + 16 + 16 + 1 = 34/70 = 0.4857.
         let tea = [[3, 1], [1, 3]];
-        assert!((fisher_exact_greater(tea) - 17.0 / 70.0).abs() < 1e-14);
         assert!((fisher_exact_two_sided(tea) - 34.0 / 70.0).abs() < 1e-14);
-        // All four right: 1/70 one-sided, 2/70 two-sided.
+        // All four right: 2/70 two-sided.
         assert!((fisher_exact_two_sided([[4, 0], [0, 4]]) - 2.0 / 70.0).abs() < 1e-15);
     }
 

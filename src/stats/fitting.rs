@@ -42,8 +42,7 @@
 //! A count-based surrogate only sees a row through its (value, fold, class)
 //! cell, whose total weight is Poisson(n_cell) (a sum of independent
 //! Poisson(1) draws is Poisson), so [`poisson_counts`] redraws the cells
-//! directly and a replicate costs O(cells), not O(rows). Models fitted on
-//! rows use [`poisson_rows`] instead. Either way [`from_replicates`] turns
+//! directly and a replicate costs O(cells), not O(rows). [`from_replicates`] turns
 //! the replicate AUCs (and the fixed-model variance, when known) into the
 //! reported interval.
 
@@ -205,20 +204,6 @@ pub fn poisson_counts(counts: &[f64], seed: u64, stream: u64, replicate: u64) ->
     counts.iter().map(|&n| rng.poisson(n) as f64).collect()
 }
 
-/// Replicate `replicate` of `n_rows` rows for a model fitted on row lists:
-/// each row index repeated Poisson(1) times, ascending. Splitting it by the
-/// rows' folds gives each fold's weighted training and held-out rows.
-#[must_use]
-pub fn poisson_rows(n_rows: usize, seed: u64, stream: u64, replicate: u64) -> Vec<usize> {
-    let mut rng = SplitMix64::derive(seed ^ stream, replicate);
-    let mut rows = Vec::with_capacity(n_rows);
-    for row in 0..n_rows {
-        let times = rng.poisson(1.0) as usize;
-        rows.extend(std::iter::repeat_n(row, times));
-    }
-    rows
-}
-
 /// `statistic` on `replicates` Poisson redraws of `counts` (in parallel, the
 /// result fixed by `seed` and `stream`); a replicate where it is `None`
 /// gives NaNs, which [`from_replicates`] skips.
@@ -263,7 +248,9 @@ pub fn detectable_auc(
 }
 
 /// The smallest class size (against a much larger other class) at which an
-/// AUC of `auc` is detectable over `line` with `power` (see [`detectable_auc`]).
+/// AUC of `auc` is detectable over `line` with `power` (see [`detectable_auc`]);
+/// the derivation of the default minimum class size, checked in its tests.
+#[cfg(test)]
 #[must_use]
 pub fn min_class_size(auc: f64, line: f64, inflation: f64, power: f64) -> u64 {
     (2..100_000)
@@ -316,15 +303,6 @@ mod tests {
         let se = hanley_mcneil_se(0.5, 100, 100);
         assert!((tied.high.unwrap() - (0.5 + Z_975 * se)).abs() < 1e-12);
         assert_eq!(degenerate_interval(1.0, 0, 5).low, None);
-    }
-
-    #[test]
-    fn poisson_rows_keep_about_one_copy_per_row() {
-        // E[Σ Poisson(1)] = n, sd √n: 10 000 rows may differ by 4 sd = 400.
-        let rows = poisson_rows(10_000, 3, 0, 1);
-        assert!((rows.len() as f64 - 10_000.0).abs() < 400.0);
-        assert!(rows.windows(2).all(|w| w[0] <= w[1]));
-        assert_eq!(rows, poisson_rows(10_000, 3, 0, 1));
     }
 
     #[test]

@@ -10,9 +10,6 @@
 use super::contingency::Contingency;
 use super::special::ln_factorial;
 
-/// Nats in one bit, ln 2: divide a value in nats by this to get bits.
-pub const NATS_PER_BIT: f64 = std::f64::consts::LN_2;
-
 /// A hypergeometric term this far below the mode's probability ends the walk.
 const NEGLIGIBLE_PROBABILITY: f64 = 1e-20;
 
@@ -37,25 +34,6 @@ fn sum_c_ln_c(counts: &[u64]) -> f64 {
         .sum()
 }
 
-/// Miller–Madow entropy Ĥ + (m − 1)/(2N), m the occupied cells
-/// (Miller 1955, "Note on the bias of information estimates").
-#[must_use]
-pub fn miller_madow_entropy(counts: &[u64]) -> f64 {
-    let total: u64 = counts.iter().sum();
-    if total == 0 {
-        return 0.0;
-    }
-    let occupied = counts.iter().filter(|&&c| c > 0).count() as f64;
-    entropy(counts) + (occupied - 1.0) / (2.0 * total as f64)
-}
-
-/// Plug-in mutual information Σ p_xy ln(p_xy/(p_x p_y)) in nats (Cover &
-/// Thomas 2006, eq. 2.28), clipped at 0 as scikit-learn `mutual_info_score`.
-#[must_use]
-pub fn mutual_information(table: &Contingency) -> f64 {
-    Margins::of(table).mutual_information(table)
-}
-
 /// Miller–Madow corrected MI: Î − (m_xy − m_x − m_y + 1)/(2N), the m's
 /// counting occupied cells, rows and columns (Miller 1955 applied to
 /// I = H(X) + H(Y) − H(X,Y)). May be negative for a feature with no signal.
@@ -63,35 +41,6 @@ pub fn mutual_information(table: &Contingency) -> f64 {
 pub fn miller_madow_mutual_information(table: &Contingency) -> f64 {
     let margins = Margins::of(table);
     margins.mutual_information(table) - margins.miller_madow_bias(table)
-}
-
-/// Expected plug-in MI under independence with both margins fixed
-/// (hypergeometric model; Vinh, Epps & Bailey 2010, JMLR 11, eq. 24a).
-///
-/// Rows and columns with equal totals share one hypergeometric sum, which is
-/// multiplied by their multiplicity; each sum walks outward from the mode with
-/// the pmf recurrence and stops once terms fall below 1e-20 of the mode's
-/// probability, so an identifier column of 10⁶ rows costs microseconds.
-#[must_use]
-pub fn expected_mutual_information(table: &Contingency) -> f64 {
-    Margins::of(table).expected_mutual_information()
-}
-
-/// Adjusted mutual information (I − E[I]) / (½(H(X) + H(Y)) − E[I])
-/// (Vinh, Epps & Bailey 2010, eq. 26 with the arithmetic mean), with
-/// scikit-learn's edge cases: 1 when both sides have one level (or none), and
-/// the denominator kept at least machine epsilon in magnitude.
-#[must_use]
-pub fn adjusted_mutual_information(table: &Contingency) -> f64 {
-    summarize(table).ami
-}
-
-/// Normalised mutual information I / (½(H(X) + H(Y))) (Strehl & Ghosh 2002;
-/// Vinh, Epps & Bailey 2010, Table 2, arithmetic mean), 1 when both sides have
-/// one level and 0 when I = 0, as scikit-learn.
-#[must_use]
-pub fn normalized_mutual_information(table: &Contingency) -> f64 {
-    summarize(table).nmi
 }
 
 /// Every information measure of one table, sharing margins and entropies.
@@ -284,19 +233,19 @@ mod tests {
         // (WORKED-EXAMPLES §3). Counts are the joint probabilities × 32.
         let t = table(&[&[4, 2, 1, 1], &[2, 4, 1, 1], &[2, 2, 2, 2], &[8, 0, 0, 0]]);
         let s = summarize(&t);
-        assert!((s.mi_nats / NATS_PER_BIT - 0.375).abs() < 1e-12);
-        assert!((s.entropy_feature / NATS_PER_BIT - 2.0).abs() < 1e-12);
-        assert!((s.entropy_protected / NATS_PER_BIT - 1.75).abs() < 1e-12);
-        assert!((mutual_information(&t) - 0.259_930).abs() < 5e-7);
+        let bits = std::f64::consts::LN_2;
+        assert!((s.mi_nats / bits - 0.375).abs() < 1e-12);
+        assert!((s.entropy_feature / bits - 2.0).abs() < 1e-12);
+        assert!((s.entropy_protected / bits - 1.75).abs() < 1e-12);
+        assert!((s.mi_nats - 0.259_930).abs() < 5e-7);
     }
 
     #[test]
-    fn miller_madow_entropy_of_r_entropy_example() {
+    fn plug_in_entropy_of_r_entropy_example() {
         // R package `entropy` example counts (WORKED-EXAMPLES §5): N = 19, m = 8,
-        // plug-in 1.968382 and Miller–Madow 2.152593 nats (6 printed decimals).
+        // plug-in 1.968382 nats (6 printed decimals).
         let y = [4, 2, 3, 0, 2, 4, 0, 0, 2, 1, 1];
         assert!((entropy(&y) - 1.968_382).abs() < 5e-7);
-        assert!((miller_madow_entropy(&y) - 2.152_593).abs() < 5e-7);
     }
 
     #[test]
@@ -304,7 +253,7 @@ mod tests {
         // WORKED-EXAMPLES §14/§5: T = [[30,20,10],[15,25,40]], Î = 0.078790 nats, G = 2NÎ =
         // 22.061210; full support so the MM correction is (R−1)(C−1)/(2N) = 2/280.
         let t = table(&[&[30, 20, 10], &[15, 25, 40]]);
-        let mi = mutual_information(&t);
+        let mi = summarize(&t).mi_nats;
         assert!((mi - 0.078_790).abs() < 5e-7);
         assert!((2.0 * 140.0 * mi - 22.061_210).abs() < 5e-6);
         let mm = miller_madow_mutual_information(&t);
@@ -317,21 +266,23 @@ mod tests {
         // T = [[5,2,0],[1,3,4]]: I = 0.286362, E[I] = 0.080270, AMI = 0.255132;
         // T = [[3,1,0],[1,2,1],[0,1,3]]: I = 0.377149, E[I] = 0.233393, AMI = 0.166150.
         let t1 = table(&[&[5, 2, 0], &[1, 3, 4]]);
-        assert!((mutual_information(&t1) - 0.286_362).abs() < 5e-7);
-        assert!((expected_mutual_information(&t1) - 0.080_270).abs() < 5e-7);
-        assert!((adjusted_mutual_information(&t1) - 0.255_132).abs() < 5e-7);
+        // E[I] enters through AMI = (I − E[I]) / (mean entropy − E[I]).
         let s = summarize(&t1);
+        assert!((s.mi_nats - 0.286_362).abs() < 5e-7);
+        assert!((s.ami - 0.255_132).abs() < 5e-7);
         assert!((s.entropy_feature - 0.690_923).abs() < 5e-7);
         assert!((s.entropy_protected - 1.085_189).abs() < 5e-7);
         let t2 = table(&[&[3, 1, 0], &[1, 2, 1], &[0, 1, 3]]);
-        assert!((expected_mutual_information(&t2) - 0.233_393).abs() < 5e-7);
-        assert!((adjusted_mutual_information(&t2) - 0.166_150).abs() < 5e-7);
+        let s2 = summarize(&t2);
+        assert!((s2.mi_nats - 0.377_149).abs() < 5e-7);
+        assert!((s2.ami - 0.166_150).abs() < 5e-7);
     }
 
     #[test]
-    fn emi_of_identifier_equals_mean_class_entropy_term() {
+    fn ami_of_an_identifier_is_zero() {
         // One row per level (an identifier): every a_i = 1, so n ∈ {0, 1} and
-        // E[I] = Σ_j (b_j/N) ln(N/b_j) = H(A) exactly (eq. 24a with a_i = 1; computed by hand).
+        // E[I] = Σ_j (b_j/N) ln(N/b_j) = H(A) = I exactly (eq. 24a with a_i = 1; computed
+        // by hand), so AMI = 0.
         let n = 1_000_000u32;
         let ids: Vec<u32> = (0..n).collect();
         let classes: Vec<u32> = (0..n).map(|i| u32::from(i % 10 < 3)).collect();
@@ -340,7 +291,6 @@ mod tests {
         let start = std::time::Instant::now();
         let s = summarize(&t);
         assert!(start.elapsed().as_secs_f64() < 1.0);
-        assert!((expected_mutual_information(&t) - h).abs() < 1e-9);
         assert!((s.mi_nats - h).abs() < 1e-9);
         assert!(s.ami.abs() < 1e-6);
     }
@@ -382,6 +332,17 @@ mod tests {
         assert!((mi_sum / 2000.0 - 0.03).abs() < 0.005);
     }
 
+    fn transposed(t: &Contingency) -> Contingency {
+        let counts = (0..t.cols)
+            .flat_map(|c| (0..t.rows).map(move |r| t.get(r, c)))
+            .collect();
+        Contingency {
+            rows: t.cols,
+            cols: t.rows,
+            counts,
+        }
+    }
+
     fn counts() -> impl Strategy<Value = (usize, usize, Vec<u64>)> {
         (1usize..6, 1usize..6)
             .prop_flat_map(|(r, c)| (Just(r), Just(c), prop::collection::vec(0u64..30, r * c)))
@@ -393,7 +354,7 @@ mod tests {
         fn mi_symmetric_and_nonnegative((rows, cols, counts) in counts()) {
             let t = Contingency { rows, cols, counts };
             let forward = summarize(&t);
-            let backward = summarize(&t.transposed());
+            let backward = summarize(&transposed(&t));
             prop_assert!(forward.mi_nats >= 0.0);
             prop_assert!((forward.mi_nats - backward.mi_nats).abs() < 1e-12);
             prop_assert!((forward.ami - backward.ami).abs() < 1e-9);

@@ -1,18 +1,6 @@
 //! Classical tests on contingency tables and the four-fifths rule.
 
 use super::contingency::Contingency;
-use super::special::chi_square_sf;
-
-/// A test statistic with its χ² degrees of freedom and upper-tail p-value.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct ChiSquareTest {
-    /// The test statistic (χ² or G).
-    pub statistic: f64,
-    /// Degrees of freedom, (R − 1)(C − 1) over occupied rows and columns.
-    pub dof: u64,
-    /// P(χ²_dof ≥ statistic).
-    pub p_value: f64,
-}
 
 /// Observed and expected counts of the occupied cells' table: rows and
 /// columns with zero totals are dropped (they carry no expected count).
@@ -48,53 +36,9 @@ impl Expected {
         }
     }
 
-    /// (R − 1)(C − 1) over occupied rows and columns.
-    fn dof(&self) -> u64 {
-        self.occupied_rows.saturating_sub(1) * self.occupied_cols.saturating_sub(1)
-    }
-
-    fn test(&self, statistic: f64) -> ChiSquareTest {
-        let dof = self.dof();
-        let p_value = if dof == 0 {
-            1.0
-        } else {
-            chi_square_sf(statistic, dof as f64)
-        };
-        ChiSquareTest {
-            statistic,
-            dof,
-            p_value,
-        }
-    }
-
     fn pearson(&self) -> f64 {
         self.cells.iter().map(|&(o, e)| (o - e) * (o - e) / e).sum()
     }
-}
-
-/// Pearson's χ² test of independence, Σ (O − E)²/E on (R−1)(C−1) degrees of
-/// freedom, no continuity correction (Pearson 1900; Agresti 2013, eq. 3.10),
-/// as scipy `chi2_contingency(correction=False)`. The p-value uses the
-/// regularised incomplete gamma function (A&S 1964, eq. 26.4.19).
-#[must_use]
-pub fn chi_square_test(table: &Contingency) -> ChiSquareTest {
-    let expected = Expected::of(table);
-    expected.test(expected.pearson())
-}
-
-/// Likelihood-ratio G test, G = 2 Σ O ln(O/E) = 2N·Î (Agresti 2013, eq.
-/// 3.11; Sokal & Rohlf 1995, §17.1), on the Pearson degrees of freedom.
-#[must_use]
-pub fn g_test(table: &Contingency) -> ChiSquareTest {
-    let expected = Expected::of(table);
-    let g = 2.0
-        * expected
-            .cells
-            .iter()
-            .filter(|&&(o, _)| o > 0.0)
-            .map(|&(o, e)| o * (o / e).ln())
-            .sum::<f64>();
-    expected.test(g.max(0.0))
 }
 
 /// Cramér's V = √(χ² / (N (min(R, C) − 1))) over occupied rows and columns
@@ -139,21 +83,13 @@ mod tests {
     }
 
     #[test]
-    fn chi_square_and_cramers_v_check_values() {
+    fn cramers_v_check_values() {
         // scipy chi2_contingency(T, correction=False), WORKED-EXAMPLES §14 (6 printed digits):
-        // [[30,20,10],[15,25,40]]: χ² = 21.129630, dof 2, p = 2.580829e−05, V = 0.388492.
+        // [[30,20,10],[15,25,40]]: V = 0.388492.
         let t = table(&[&[30, 20, 10], &[15, 25, 40]]);
-        let chi = chi_square_test(&t);
-        assert!((chi.statistic - 21.129_630).abs() < 5e-7);
-        assert_eq!(chi.dof, 2);
-        assert!((chi.p_value - 2.580_829e-5).abs() < 5e-12);
         assert!((cramers_v(&t) - 0.388_492).abs() < 5e-7);
-        // [[12,5,3],[4,10,6],[2,3,15]]: χ² = 23.416667, dof 4, p = 1.045259e−04, V = 0.441745.
+        // [[12,5,3],[4,10,6],[2,3,15]]: V = 0.441745.
         let t = table(&[&[12, 5, 3], &[4, 10, 6], &[2, 3, 15]]);
-        let chi = chi_square_test(&t);
-        assert!((chi.statistic - 23.416_667).abs() < 5e-7);
-        assert_eq!(chi.dof, 4);
-        assert!((chi.p_value - 1.045_259e-4).abs() < 5e-11);
         assert!((cramers_v(&t) - 0.441_745).abs() < 5e-7);
     }
 
@@ -163,19 +99,6 @@ mod tests {
         // χ² = 84.056069 (WORKED-EXAMPLES §14). An empty row must not change anything.
         let t = table(&[&[100, 150], &[203, 322], &[0, 0], &[420, 700], &[320, 210]]);
         assert!((cramers_v(&t) - 0.186_178_130_774_836_78).abs() < 1e-12);
-        assert!((chi_square_test(&t).statistic - 84.056_069).abs() < 5e-7);
-        assert_eq!(chi_square_test(&t).dof, 3);
-    }
-
-    #[test]
-    fn g_test_check_values() {
-        // scipy chi2_contingency(lambda_="log-likelihood"), WORKED-EXAMPLES §5:
-        // [[10,20,30],[20,25,15]]: G = 9.051656, dof 2, p = 0.010826; §14: G = 22.061210.
-        let g = g_test(&table(&[&[10, 20, 30], &[20, 25, 15]]));
-        assert!((g.statistic - 9.051_656).abs() < 5e-7);
-        assert!((g.p_value - 0.010_826).abs() < 5e-7);
-        let g = g_test(&table(&[&[30, 20, 10], &[15, 25, 40]]));
-        assert!((g.statistic - 22.061_210).abs() < 5e-7);
     }
 
     #[test]

@@ -4,13 +4,15 @@
 //! fitted model that scores other rows; [`cross_fit`] only knows this trait,
 //! so nothing is ever scored on rows it was fitted on.
 
-pub mod boosted;
-pub mod count_table;
-pub mod frequency;
-pub mod logistic;
+pub(crate) mod boosted;
+pub(crate) mod count_table;
+pub(crate) mod frequency;
+pub(crate) mod logistic;
 #[cfg(test)]
 mod oracles;
-pub mod tree;
+#[cfg(test)]
+mod reference;
+pub(crate) mod tree;
 
 pub use boosted::BoostedSurrogate;
 pub use count_table::CountTable;

@@ -13,16 +13,15 @@
 //! than any difference between a working and a broken surrogate on these data,
 //! larger than solver-level differences.
 
-mod common;
+#[path = "../../tests/common/fixtures.rs"]
+mod fixtures;
 
-use common::Csv;
+use super::{BoostedSurrogate, LogisticSurrogate, Scores, Surrogate, TreeSurrogate, cross_fit};
+use crate::data::encode::{encode_integer_coded, encode_levels, encode_numeric};
+use crate::data::{EncodedColumn, FeatureKind};
+use crate::stats::auc::auc_from_scores;
+use fixtures::Csv;
 use serde_json::Value;
-use telltale::data::encode::{encode_integer_coded, encode_levels, encode_numeric};
-use telltale::data::{EncodedColumn, FeatureKind};
-use telltale::stats::auc::auc_from_scores;
-use telltale::surrogate::{
-    BoostedSurrogate, LogisticSurrogate, Scores, Surrogate, TreeSurrogate, cross_fit,
-};
 
 /// A reference case: encoded features, protected class codes, folds and the JSON.
 struct Case {
@@ -58,10 +57,10 @@ fn encode(name: &str, fields: &[String]) -> EncodedColumn {
 
 fn load(csv: &str, reference: &str) -> Case {
     let reference: Value = serde_json::from_str(
-        &std::fs::read_to_string(common::fixture(&format!("reference/{reference}"))).unwrap(),
+        &std::fs::read_to_string(fixtures::fixture(&format!("reference/{reference}"))).unwrap(),
     )
     .unwrap();
-    let csv = Csv::read(&common::fixture(&format!("reference/{csv}")));
+    let csv = Csv::read(&fixtures::fixture(&format!("reference/{csv}")));
     let protected = reference["protected"].as_str().unwrap();
     let outcome = reference["outcome"].as_str();
     let mut features = Vec::new();

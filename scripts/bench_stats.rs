@@ -6,10 +6,10 @@
 
 use std::hint::black_box;
 use std::time::Instant;
-use telltale::rng::SplitMix64;
+use telltale::data::demo::SplitMix64;
 use telltale::stats::{
     Contingency, auc_from_rating_table, auc_from_scores, balanced_error_rate, delong, macro_ovr,
-    min_ber, mutual_information, summarize,
+    summarize,
 };
 
 const ROWS: usize = 1_000_000;
@@ -102,16 +102,8 @@ fn main() {
             time(|| Contingency::from_codes(&data.identifier, ROWS as u32, &data.binary, 2)),
         ),
         (
-            "MI, 32-level table",
-            time(|| mutual_information(&feature_table)),
-        ),
-        (
             "MI+AMI+NMI, 32-level table",
             time(|| summarize(&feature_table)),
-        ),
-        (
-            "MI, identifier table",
-            time(|| mutual_information(&id_table)),
         ),
         (
             "MI+AMI+NMI, identifier table",
@@ -136,10 +128,6 @@ fn main() {
         (
             "BER balanced Bayes, 3 classes",
             time(|| balanced_error_rate(&data.proba, CLASSES, &data.labels)),
-        ),
-        (
-            "min BER over thresholds",
-            time(|| min_ber(&data.scores, &data.positive)),
         ),
         (
             "AUC from 32-level rating table",
