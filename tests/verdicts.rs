@@ -276,13 +276,9 @@ fn explain_names_no_partner_on_pure_noise() {
     }
 }
 
-/// Measurement run, not a check (`cargo test --release --test verdicts --
-/// --ignored --nocapture`): coverage of the fitting-inclusive and of the
-/// DeLong interval on the three coverage designs, and the false-flag rates
-/// on pure noise with 5, 10 and 20 minority rows in 2 000 (flags of
-/// features and pairs; the gate includes the whole-set attacker, without
-/// ablation), with the minimum class size switched off (the intervals
-/// alone) and at its default.
+/// Measurement run, not a check (`scripts/monte-carlo.sh rates`): coverage
+/// of the fitting-inclusive and of the DeLong interval on the three coverage
+/// designs of the single-feature scan.
 #[test]
 #[ignore = "Monte Carlo measurement; prints rates"]
 fn monte_carlo_rates() {
@@ -332,10 +328,24 @@ fn monte_carlo_rates() {
             ratio / n
         );
     }
+}
+
+/// Measurement run, not a check (`scripts/monte-carlo.sh false_flags`): the
+/// false-flag rates on pure noise with 5, 10 and 20 minority rows in 2 000
+/// (flags of features and pairs; the gate, i.e. exit 1, includes the
+/// whole-set attacker, without ablation), with the minimum class size
+/// switched off (the intervals alone), lowered to 10 and at its default;
+/// `FALSE_FLAG_SEEDS` data sets each (default 20).
+#[test]
+#[ignore = "Monte Carlo measurement; prints rates"]
+fn monte_carlo_false_flags() {
+    let seeds: u64 = std::env::var("FALSE_FLAG_SEEDS")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(20);
     for minority in [5, 10, 20] {
-        for min_class in [0, telltale::scan::DEFAULT_MIN_CLASS] {
+        for min_class in [0, 10, telltale::scan::DEFAULT_MIN_CLASS] {
             let (mut sets_flagged, mut gate_failed, mut flags, mut tests) = (0, 0, 0, 0);
-            let seeds = 20u64;
             for seed in 0..seeds {
                 let options = ScanOptions {
                     seed,
@@ -360,4 +370,146 @@ fn monte_carlo_rates() {
             );
         }
     }
+}
+
+/// Level shares by class of the planted 4-level columns: moderate (Bayes
+/// AUC 0.75 on its own, as in `intervals_cover_a_planted_bayes_auc`) and
+/// strong (Σ_j P_b(j)·[P_a(< j) + ½P_a(j)] = 0.0025 + 0.0525 + 0.1875 +
+/// 0.6325 = 0.875 by Hanley & McNeil 1982, eq. 1).
+const PLANTED: [[[f64; 4]; 2]; 2] = [
+    [[0.4, 0.3, 0.2, 0.1], [0.1, 0.2, 0.3, 0.4]],
+    [[0.55, 0.25, 0.15, 0.05], [0.05, 0.15, 0.25, 0.55]],
+];
+
+/// A whole-set design: `rows` rows with `minority` rows of class 1 and six
+/// noise columns (two each of numerics, 6- and 40-level categoricals),
+/// plus the planted 4-level column `PLANTED[p]` when `planted` is `Some(p)`.
+fn whole_set_table(
+    rows: usize,
+    minority: usize,
+    planted: Option<usize>,
+    seed: u64,
+) -> EncodedTable {
+    let mut rng = SplitMix64::new(seed);
+    let group = attribute(rows, minority, &mut rng);
+    let mut features = noise_columns(&group.codes, 6, &mut rng);
+    if let Some(p) = planted {
+        let shares: Vec<Vec<f64>> = PLANTED[p].iter().map(|s| s.to_vec()).collect();
+        features.push(categorical("planted", &group.codes, &shares, &mut rng));
+    }
+    table(group, features)
+}
+
+/// The whole-set attacker's report on `data`: no pairs (so no joint
+/// columns), no ablation.
+fn whole_set_of(data: &EncodedTable, seed: u64) -> telltale::report::WholeSet {
+    let options = ScanOptions {
+        seed,
+        pairs: PairMode::None,
+        ablation: false,
+        ..ScanOptions::default()
+    };
+    scan(data, &options, &Silent)[0]
+        .whole_set
+        .clone()
+        .expect("whole set scanned")
+}
+
+/// The estimand of a planted design's cross-fitted AUC: the expected AUC,
+/// on new rows, of the attacker trained on a training fold's worth of rows
+/// (4/5 of 2 000), which is what cross-validation estimates (Bates, Hastie &
+/// Tibshirani 2023, "Cross-validation: what does it estimate and how well
+/// does it do it?", JASA, §2). Mean over `trainings` seeded training sets,
+/// each scored on 50 000 fresh rows.
+fn planted_truth(planted: usize, trainings: u64) -> f64 {
+    use telltale::surrogate::{BoostedSurrogate, Fitted};
+    let (train_rows, test_rows) = (1_600, 50_000);
+    let total: f64 = (0..trainings)
+        .map(|t| {
+            let rows = train_rows + test_rows;
+            let data = whole_set_table(rows, rows * 3 / 10, Some(planted), 90_000 + t);
+            let columns: Vec<&EncodedColumn> = data.features.iter().collect();
+            let classes = &data.protected[0].codes;
+            let train: Vec<usize> = (0..train_rows).collect();
+            let test: Vec<usize> = (train_rows..rows).collect();
+            let model = BoostedSurrogate::default()
+                .fit_model(&columns, classes, 2, &train)
+                .expect("fit");
+            let proba = model.predict_proba(&columns, &test);
+            let scores: Vec<f64> = proba.chunks_exact(2).map(|p| p[1]).collect();
+            let positive: Vec<bool> = test.iter().map(|&r| classes[r] == 1).collect();
+            telltale::stats::auc::auc_from_scores(&scores, &positive).expect("both classes")
+        })
+        .sum();
+    total / trainings as f64
+}
+
+/// Measurement run, not a check (`scripts/monte-carlo.sh whole_set`):
+/// coverage of the whole-set attacker's 95 % interval on pure noise (truth
+/// 0.5; 30 % and 5 % minority) and on the planted designs (truth from
+/// [`planted_truth`]), with the empirical sd of the AUC over the mean
+/// reported standard error; `WHOLE_SET_REPLICATES` data sets per design
+/// (default 400).
+#[test]
+#[ignore = "Monte Carlo measurement; prints rates"]
+fn monte_carlo_whole_set() {
+    let replicates: u64 = std::env::var("WHOLE_SET_REPLICATES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(400);
+    let designs = [
+        ("noise, 30% minority", 600, None),
+        ("noise, 5% minority", 100, None),
+        (
+            "planted 4-level (0.75) + 6 noise, 30% minority",
+            600,
+            Some(0),
+        ),
+        (
+            "planted 4-level (0.875) + 6 noise, 30% minority",
+            600,
+            Some(1),
+        ),
+    ];
+    for (name, minority, planted) in designs {
+        let started = std::time::Instant::now();
+        let truth = planted.map_or(0.5, |p| planted_truth(p, 40));
+        let results: Vec<(f64, f64, bool)> = (0..replicates)
+            .map(|seed| {
+                let data = whole_set_table(2_000, minority, planted, 60_000 + seed);
+                let whole = whole_set_of(&data, seed);
+                let covers = whole.auc_low <= truth && truth <= whole.auc_high;
+                (whole.auc, whole.auc_se, covers)
+            })
+            .collect();
+        let n = replicates as f64;
+        let covered = results.iter().filter(|r| r.2).count() as f64 / n;
+        let mean = results.iter().map(|r| r.0).sum::<f64>() / n;
+        let sd = (results.iter().map(|r| (r.0 - mean).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
+        let mean_se = results.iter().map(|r| r.1).sum::<f64>() / n;
+        println!(
+            "{name}: truth {truth:.4}, coverage {covered:.4} ({replicates} data sets), \
+             mean AUC {mean:.4}, sd of AUC {sd:.4}, mean se {mean_se:.4}, sd/se {:.3}, {:.1} s",
+            sd / mean_se,
+            started.elapsed().as_secs_f64()
+        );
+    }
+    let started = std::time::Instant::now();
+    let significant = (0..replicates)
+        .filter(|&seed| {
+            let data = whole_set_table(2_000, 600, None, 60_000 + seed);
+            let options = ScanOptions {
+                seed,
+                ..ScanOptions::default()
+            };
+            let added = telltale::scan::added_source_effects(&data, &["noise_05".into()], &options);
+            added[0].p_value.is_some_and(|p| p < 0.05)
+        })
+        .count();
+    println!(
+        "added noise column (40 levels) to five noise columns, 30% minority: p < 0.05 in {:.4} \
+         ({replicates} data sets), {:.1} s",
+        significant as f64 / replicates as f64,
+        started.elapsed().as_secs_f64()
+    );
 }
