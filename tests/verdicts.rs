@@ -330,6 +330,14 @@ fn monte_carlo_rates() {
     }
 }
 
+/// A Monte Carlo size from the environment variable `name`, else `default`.
+fn count_from_env(name: &str, default: u64) -> u64 {
+    std::env::var(name)
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(default)
+}
+
 /// Measurement run, not a check (`scripts/monte-carlo.sh false_flags`): the
 /// false-flag rates on pure noise with 5, 10 and 20 minority rows in 2 000
 /// (flags of features and pairs; the gate, i.e. exit 1, includes the
@@ -339,10 +347,7 @@ fn monte_carlo_rates() {
 #[test]
 #[ignore = "Monte Carlo measurement; prints rates"]
 fn monte_carlo_false_flags() {
-    let seeds: u64 = std::env::var("FALSE_FLAG_SEEDS")
-        .ok()
-        .and_then(|v| v.parse().ok())
-        .unwrap_or(20);
+    let seeds = count_from_env("FALSE_FLAG_SEEDS", 20);
     for minority in [5, 10, 20] {
         for min_class in [0, 10, telltale::scan::DEFAULT_MIN_CLASS] {
             let (mut sets_flagged, mut gate_failed, mut flags, mut tests) = (0, 0, 0, 0);
@@ -453,10 +458,7 @@ fn planted_truth(planted: usize, trainings: u64) -> f64 {
 #[test]
 #[ignore = "Monte Carlo measurement; prints rates"]
 fn monte_carlo_whole_set() {
-    let replicates: u64 = std::env::var("WHOLE_SET_REPLICATES")
-        .ok()
-        .and_then(|v| v.parse().ok())
-        .unwrap_or(400);
+    let replicates = count_from_env("WHOLE_SET_REPLICATES", 400);
     let designs = [
         ("noise, 30% minority", 600, None),
         ("noise, 5% minority", 100, None),
@@ -482,15 +484,15 @@ fn monte_carlo_whole_set() {
                 (whole.auc, whole.auc_se, covers)
             })
             .collect();
-        let n = replicates as f64;
-        let covered = results.iter().filter(|r| r.2).count() as f64 / n;
-        let mean = results.iter().map(|r| r.0).sum::<f64>() / n;
-        let sd = (results.iter().map(|r| (r.0 - mean).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
-        let mean_se = results.iter().map(|r| r.1).sum::<f64>() / n;
+        let c = telltale::stats::fitting::Calibration::of(&results);
         println!(
-            "{name}: truth {truth:.4}, coverage {covered:.4} ({replicates} data sets), \
-             mean AUC {mean:.4}, sd of AUC {sd:.4}, mean se {mean_se:.4}, sd/se {:.3}, {:.1} s",
-            sd / mean_se,
+            "{name}: truth {truth:.4}, coverage {:.4} ({replicates} data sets), mean AUC {:.4}, \
+             sd of AUC {:.4}, mean se {:.4}, sd/se {:.3}, {:.1} s",
+            c.coverage,
+            c.mean,
+            c.sd,
+            c.mean_se,
+            c.spread_ratio(),
             started.elapsed().as_secs_f64()
         );
     }

@@ -562,8 +562,7 @@ mod tests {
         // sharper check: an sd from 200 values has relative sd 1/√398 = 0.05,
         // so 1.15 is 3 sd above a calibrated 1.0 and over 3.6 sd below the
         // DeLong-only 1.33–1.40.
-        let replicates = 200usize;
-        let results: Vec<(f64, f64, bool)> = (0..replicates as u64)
+        let results: Vec<(f64, f64, bool)> = (0..200u64)
             .into_par_iter()
             .map(|seed| {
                 let (attribute, features) = noise(500, 4_000 + seed);
@@ -578,13 +577,10 @@ mod tests {
                 (interval.auc, interval.auc_se, covers)
             })
             .collect();
-        let n = replicates as f64;
-        let rate = results.iter().filter(|r| r.2).count() as f64 / n;
-        let mean = results.iter().map(|r| r.0).sum::<f64>() / n;
-        let sd = (results.iter().map(|r| (r.0 - mean).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
-        let mean_se = results.iter().map(|r| r.1).sum::<f64>() / n;
+        let calibration = crate::stats::fitting::Calibration::of(&results);
+        let rate = calibration.coverage;
         assert!((0.91..=0.99).contains(&rate), "coverage {rate}");
-        assert!(sd / mean_se <= 1.15, "sd {sd} over mean se {mean_se}");
+        assert!(calibration.spread_ratio() <= 1.15, "{calibration:?}");
     }
 
     #[test]
