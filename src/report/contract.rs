@@ -215,7 +215,9 @@ pub struct ProtectedResult {
     pub whole_set: Option<WholeSet>,
 }
 
-/// An AUC with its 95% DeLong interval and standard error.
+/// An AUC with its 95% interval and standard error; for the boosted
+/// attacker, DeLong's standard error × √2 so that it includes the fitting
+/// variance (`scan::evaluate::ATTACKER_FITTING_FACTOR`).
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq)]
 pub struct AucInterval {
     /// Out-of-fold AUC (`stats::auc::delong`, or macro one-vs-rest for more classes).
@@ -478,7 +480,8 @@ pub struct DropOne {
     pub auc_high: f64,
     /// Whole-set AUC minus this AUC.
     pub delta: f64,
-    /// DeLong's test of the two correlated AUCs (same rows).
+    /// DeLong's test of the two correlated AUCs (same rows), its variance
+    /// doubled to include the fitting variance (`scan::evaluate::compare`).
     pub p_value: Option<f64>,
     /// False when no fold's attacker split on the feature: its drop-one AUC is
     /// then the whole set's exactly, without a refit.
@@ -605,7 +608,9 @@ pub struct AddedSourceEffect {
     pub auc_with: AucInterval,
     /// `auc_with − auc_without`.
     pub difference: f64,
-    /// DeLong's test of the difference; `null` when the base has no features.
+    /// DeLong's test of the difference, its variance doubled to include the
+    /// fitting variance (`scan::evaluate::compare`); `null` when the base has
+    /// no features.
     pub p_value: Option<f64>,
 }
 

@@ -359,7 +359,7 @@ fn drop_one_section(whole: &WholeSet) -> Option<Section<'static>> {
             Column::text("without"),
             Column::numeric("AUC [95% CI]"),
             Column::numeric("AUC lost"),
-            Column::numeric("p (DeLong)"),
+            Column::numeric("p (paired)"),
         ],
         rows: format::drop_one_by_loss(whole)
             .into_iter()
@@ -387,8 +387,8 @@ fn removal_section<'a>(
             whole,
             target_auc,
         },
-        caption: "Whole-set AUC after each greedy removal, with its 95% DeLong interval; \
-                  dashed line: target."
+        caption: "Whole-set AUC after each greedy removal, with its 95% interval (fitting \
+                  variance included); dashed line: target."
             .to_owned(),
     }];
     if !whole.removal_plan.is_empty() {
@@ -563,7 +563,7 @@ fn added_source_section(added: &AddedSource) -> Section<'static> {
             Column::numeric("AUC without"),
             Column::numeric("AUC with"),
             Column::numeric("difference"),
-            Column::numeric("p (DeLong)"),
+            Column::numeric("p (paired)"),
         ],
         rows: added
             .per_protected

@@ -263,7 +263,7 @@ fn bar_legend(canvas: &mut Canvas, y: f64) {
 }
 
 /// Ranked leakage bars: one bar per feature from chance (0.5) to its AUC,
-/// the DeLong interval as a whisker, coloured by flag, accepted features
+/// its 95% interval as a whisker, coloured by flag, accepted features
 /// marked, dashed lines at the flag thresholds (which apply to the lower bound).
 #[must_use]
 pub fn leakage_bars(title: &str, features: &[&FeatureResult], thresholds: &Thresholds) -> String {
@@ -656,7 +656,7 @@ struct Step {
 }
 
 /// The removal plan as a step chart: whole-set AUC before any removal and
-/// after each greedy removal, its DeLong interval as a band, the target as a
+/// after each greedy removal, its 95% interval as a band, the target as a
 /// dashed line.
 #[must_use]
 pub fn removal_steps(title: &str, whole: &WholeSet, target_auc: f64) -> String {

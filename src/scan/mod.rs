@@ -7,6 +7,8 @@ mod composition;
 mod evaluate;
 pub mod explain;
 mod joints;
+#[cfg(test)]
+mod monte_carlo;
 mod outcome;
 mod pairs;
 mod plan;

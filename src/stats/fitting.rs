@@ -260,6 +260,42 @@ pub fn min_class_size(auc: f64, line: f64, inflation: f64, power: f64) -> u64 {
         .unwrap_or(100_000)
 }
 
+/// How a set of seeded replicate intervals performed: the share that
+/// covered the truth, and the sample mean and sd of the estimates over the
+/// mean reported standard error (about 1 for a calibrated standard error).
+#[cfg(test)]
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Calibration {
+    pub coverage: f64,
+    pub mean: f64,
+    pub sd: f64,
+    pub mean_se: f64,
+}
+
+#[cfg(test)]
+impl Calibration {
+    /// Summary of `(estimate, standard error, covered the truth)` per replicate
+    /// (at least two).
+    #[must_use]
+    pub fn of(replicates: &[(f64, f64, bool)]) -> Self {
+        let n = replicates.len() as f64;
+        let mean = replicates.iter().map(|r| r.0).sum::<f64>() / n;
+        let spread = replicates.iter().map(|r| (r.0 - mean).powi(2)).sum::<f64>();
+        Self {
+            coverage: replicates.iter().filter(|r| r.2).count() as f64 / n,
+            mean,
+            sd: (spread / (n - 1.0)).sqrt(),
+            mean_se: replicates.iter().map(|r| r.1).sum::<f64>() / n,
+        }
+    }
+
+    /// Sd of the estimates over the mean reported standard error.
+    #[must_use]
+    pub fn spread_ratio(&self) -> f64 {
+        self.sd / self.mean_se
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
