@@ -137,3 +137,49 @@ fn outcome_gain_separates_pure_proxies_from_independent_predictors() {
     let (low, high) = (income.auc_low.unwrap(), income.auc_high.unwrap());
     assert!(low <= 0.5 && 0.5 <= high, "income leakage [{low}, {high}]");
 }
+
+/// Features planted with no leakage (README's demo table): independent of
+/// `community` by construction.
+const NO_LEAKAGE: [&str; 6] = [
+    "income_k",
+    "application_ref",
+    "loan_amount",
+    "term_months",
+    "has_guarantor",
+    "product",
+];
+
+/// With the outcome, the plan weighs utility, but only among removals that
+/// lower the leakage: it never removes a feature planted with none, however
+/// much (`income_k`) or little it is worth for the outcome; and the set the
+/// report names keeps the outcome AUC within the tolerance of the full set's
+/// while no other frontier set within it leaks less.
+#[test]
+fn the_plan_with_the_outcome_keeps_features_without_leakage_and_names_a_set_within_tolerance() {
+    let (table, _) = encoded(8_000, 5);
+    let options = ScanOptions {
+        pairs: PairMode::None,
+        ..ScanOptions::default()
+    };
+    let results = scan(&table, &options, &Silent);
+    let whole = results[0].whole_set.as_ref().expect("whole set");
+    assert!(!whole.removal_plan.is_empty());
+    for step in &whole.removal_plan {
+        assert!(step.auc_after < step.auc_before.unwrap(), "{step:?}");
+        assert!(step.outcome_auc_after.is_some(), "{step:?}");
+        for removed in &step.features {
+            assert!(!NO_LEAKAGE.contains(&removed.as_str()), "{step:?}");
+        }
+    }
+    let full = whole.frontier[0].outcome.auc;
+    let named = whole
+        .recommended_within_tolerance
+        .as_ref()
+        .expect("a named set");
+    assert!(named.outcome.auc >= full - options.max_utility_loss);
+    for point in &whole.frontier {
+        if point.outcome.auc >= full - options.max_utility_loss {
+            assert!(point.leakage.auc >= named.leakage.auc, "{point:?}");
+        }
+    }
+}

@@ -150,6 +150,9 @@ fn removal_step(remove: &str, auc: f64) -> RemovalStep {
         auc_high: auc + 0.015,
         features: vec![remove.to_owned()],
         auc_before: None,
+        outcome_auc_after: None,
+        outcome_auc_low: None,
+        outcome_auc_high: None,
     }
 }
 
@@ -191,6 +194,9 @@ fn whole_set() -> WholeSet {
         plan_check: None,
         redundancy_groups: Vec::new(),
         plan_rule: String::new(),
+        frontier: Vec::new(),
+        recommended_within_tolerance: None,
+        outcome_refits: 0,
     }
 }
 
@@ -289,6 +295,7 @@ pub fn sample_report() -> Report {
             min_class: 28,
             interval_method: "Poisson bootstrap of the cross-fit, 200 replicates".into(),
             verdict_surrogate: "frequency".into(),
+            max_utility_loss: None,
         },
         results: vec![sex_result(), age_result()],
         skipped_columns: vec![SkippedColumnInfo {
