@@ -183,3 +183,30 @@ fn the_plan_with_the_outcome_keeps_features_without_leakage_and_names_a_set_with
         }
     }
 }
+
+/// `explain` with the outcome gives the same outcome values as the scan and
+/// says in words what they mean for the planted pure proxy and the planted
+/// independent predictor.
+#[test]
+fn explain_with_the_outcome_says_how_much_value_survives_the_attribute() {
+    let (table, _) = encoded(8_000, 5);
+    let options = ScanOptions {
+        pairs: PairMode::None,
+        whole_set: false,
+        ..ScanOptions::default()
+    };
+    let results = scan(&table, &options, &Silent);
+    for (name, reading) in [
+        ("branch_area", "the interval covers 0"),
+        ("income_k", "part of its outcome value survives"),
+    ] {
+        let explained = telltale::scan::explain::explain(&table, 0, name, &options, &Silent)
+            .expect("a scanned feature");
+        assert_eq!(
+            explained.feature.outcome,
+            feature(&results[0], name).outcome
+        );
+        let text = explained.outcome_paragraph.expect("an outcome paragraph");
+        assert!(text.contains(reading), "{name}: {text}");
+    }
+}
