@@ -109,6 +109,19 @@ fn same_seed_same_report_whatever_the_thread_count() {
     assert_eq!(one, run(3));
 }
 
+/// 8,000 demo rows (seed 5) scanned with their outcome, without pairs, and
+/// with or without the whole set; the table and options are returned too.
+fn outcome_scan(whole_set: bool) -> (EncodedTable, ScanOptions, Vec<ProtectedResult>) {
+    let (table, _) = encoded(8_000, 5);
+    let options = ScanOptions {
+        pairs: PairMode::None,
+        whole_set,
+        ..ScanOptions::default()
+    };
+    let results = scan(&table, &options, &Silent);
+    (table, options, results)
+}
+
 /// The outcome's planted structure (src/data/demo.rs, README): `branch_area`
 /// predicts approval only through `community`, so its gain over the attribute
 /// is 0 however strongly it leaks; `income_k` predicts approval by itself and
@@ -116,13 +129,7 @@ fn same_seed_same_report_whatever_the_thread_count() {
 /// wide, against a planted income gain near 0.15.
 #[test]
 fn outcome_gain_separates_pure_proxies_from_independent_predictors() {
-    let (table, _) = encoded(8_000, 5);
-    let options = ScanOptions {
-        pairs: PairMode::None,
-        whole_set: false,
-        ..ScanOptions::default()
-    };
-    let results = scan(&table, &options, &Silent);
+    let (_, _, results) = outcome_scan(false);
     let r = &results[0];
     let proxy = feature(r, "branch_area");
     let value = proxy.outcome.as_ref().expect("outcome given");
@@ -156,12 +163,7 @@ const NO_LEAKAGE: [&str; 6] = [
 /// while no other frontier set within it leaks less.
 #[test]
 fn the_plan_with_the_outcome_keeps_features_without_leakage_and_names_a_set_within_tolerance() {
-    let (table, _) = encoded(8_000, 5);
-    let options = ScanOptions {
-        pairs: PairMode::None,
-        ..ScanOptions::default()
-    };
-    let results = scan(&table, &options, &Silent);
+    let (_, options, results) = outcome_scan(true);
     let whole = results[0].whole_set.as_ref().expect("whole set");
     assert!(!whole.removal_plan.is_empty());
     for step in &whole.removal_plan {
@@ -189,13 +191,7 @@ fn the_plan_with_the_outcome_keeps_features_without_leakage_and_names_a_set_with
 /// independent predictor.
 #[test]
 fn explain_with_the_outcome_says_how_much_value_survives_the_attribute() {
-    let (table, _) = encoded(8_000, 5);
-    let options = ScanOptions {
-        pairs: PairMode::None,
-        whole_set: false,
-        ..ScanOptions::default()
-    };
-    let results = scan(&table, &options, &Silent);
+    let (table, options, results) = outcome_scan(false);
     for (name, reading) in [
         ("branch_area", "the interval covers 0"),
         ("income_k", "part of its outcome value survives"),
