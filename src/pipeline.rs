@@ -19,7 +19,8 @@ use std::path::Path;
 
 pub use crate::scan::explain::{ExplainError, explain as explain_table};
 pub use crate::scan::{
-    DEFAULT_MIN_CLASS, PairMode, Progress, ScanOptions, Silent, fitted_auc, scan as scan_table,
+    DEFAULT_MAX_UTILITY_LOSS, DEFAULT_MIN_CLASS, PairMode, Progress, ScanOptions, Silent,
+    fitted_auc, scan as scan_table,
 };
 
 /// Folds a scan may use: at least two, and few enough that each keeps rows.
@@ -29,6 +30,10 @@ const BINS: std::ops::RangeInclusive<usize> = 2..=1024;
 /// Fewest rows an ablation sample may have: below this, the intervals of the
 /// refitted attacker are too wide for the ranking to mean much.
 pub const MIN_ABLATION_ROWS: usize = 1_000;
+
+/// Largest outcome AUC loss a frontier set may be allowed: half the AUC
+/// scale, the distance from a perfect model to chance.
+const MAX_UTILITY_LOSS: f64 = 0.5;
 
 /// Everything a screen needs besides the data.
 #[derive(Debug, Clone, Default)]
@@ -66,6 +71,12 @@ impl ScreenOptions {
                     "{name} must be between 0.5 and 1, got {value}"
                 )));
             }
+        }
+        if !(0.0..=MAX_UTILITY_LOSS).contains(&self.scan.max_utility_loss) {
+            return Err(InputError::Usage(format!(
+                "max utility loss must be between 0 and {MAX_UTILITY_LOSS}, got {}",
+                self.scan.max_utility_loss
+            )));
         }
         if self.scan.ablation_rows < MIN_ABLATION_ROWS {
             return Err(InputError::Usage(format!(

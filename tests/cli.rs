@@ -323,6 +323,20 @@ fn large_data_ablation_runs_on_a_stated_sample() {
 }
 
 #[test]
+fn max_utility_loss_outside_its_range_is_an_input_error() {
+    // An outcome AUC loss lies between 0 (keep every bit of utility) and 0.5
+    // (from a perfect model to chance); anything else is a usage error.
+    let file = demo_fixture();
+    for value in ["-0.01", "0.6", "NaN"] {
+        let flag = format!("--max-utility-loss={value}");
+        let out = telltale(&["scan", &file, "-p", "community", &flag]);
+        assert_input_error(&out, &["max utility loss", "between 0 and 0.5"]);
+    }
+    let out = telltale(&["demo", "--rows", "2000", "--max-utility-loss", "1"]);
+    assert_input_error(&out, &["max utility loss"]);
+}
+
+#[test]
 fn piped_output_has_no_progress_bars() {
     let dir = scratch("quiet");
     let file = write(&dir, "d.csv", small_csv().as_bytes());

@@ -109,6 +109,19 @@ fn same_seed_same_report_whatever_the_thread_count() {
     assert_eq!(one, run(3));
 }
 
+/// 8,000 demo rows (seed 5) scanned with their outcome, without pairs, and
+/// with or without the whole set; the table and options are returned too.
+fn outcome_scan(whole_set: bool) -> (EncodedTable, ScanOptions, Vec<ProtectedResult>) {
+    let (table, _) = encoded(8_000, 5);
+    let options = ScanOptions {
+        pairs: PairMode::None,
+        whole_set,
+        ..ScanOptions::default()
+    };
+    let results = scan_table(&table, &options, &Silent);
+    (table, options, results)
+}
+
 /// The outcome's planted structure (src/data/demo.rs, README): `branch_area`
 /// predicts approval only through `community`, so its gain over the attribute
 /// is 0 however strongly it leaks; `income_k` predicts approval by itself and
@@ -116,13 +129,7 @@ fn same_seed_same_report_whatever_the_thread_count() {
 /// wide, against a planted income gain near 0.15.
 #[test]
 fn outcome_gain_separates_pure_proxies_from_independent_predictors() {
-    let (table, _) = encoded(8_000, 5);
-    let options = ScanOptions {
-        pairs: PairMode::None,
-        whole_set: false,
-        ..ScanOptions::default()
-    };
-    let results = scan_table(&table, &options, &Silent);
+    let (_, _, results) = outcome_scan(false);
     let r = &results[0];
     let proxy = feature(r, "branch_area");
     let value = proxy.outcome.as_ref().expect("outcome given");
@@ -136,4 +143,66 @@ fn outcome_gain_separates_pure_proxies_from_independent_predictors() {
     assert!(value.auc_low.unwrap() > 0.6, "{:?}", value.auc_low);
     let (low, high) = (income.auc_low.unwrap(), income.auc_high.unwrap());
     assert!(low <= 0.5 && 0.5 <= high, "income leakage [{low}, {high}]");
+}
+
+/// Features planted with no leakage (README's demo table): independent of
+/// `community` by construction.
+const NO_LEAKAGE: [&str; 6] = [
+    "income_k",
+    "application_ref",
+    "loan_amount",
+    "term_months",
+    "has_guarantor",
+    "product",
+];
+
+/// With the outcome, the plan weighs utility, but only among removals that
+/// lower the leakage: it never removes a feature planted with none, however
+/// much (`income_k`) or little it is worth for the outcome; and the set the
+/// report names keeps the outcome AUC within the tolerance of the full set's
+/// while no other frontier set within it leaks less.
+#[test]
+fn the_plan_with_the_outcome_keeps_features_without_leakage_and_names_a_set_within_tolerance() {
+    let (_, options, results) = outcome_scan(true);
+    let whole = results[0].whole_set.as_ref().expect("whole set");
+    assert!(!whole.removal_plan.is_empty());
+    for step in &whole.removal_plan {
+        assert!(step.auc_after < step.auc_before.unwrap(), "{step:?}");
+        assert!(step.outcome_auc_after.is_some(), "{step:?}");
+        for removed in &step.features {
+            assert!(!NO_LEAKAGE.contains(&removed.as_str()), "{step:?}");
+        }
+    }
+    let full = whole.frontier[0].outcome.auc;
+    let named = whole
+        .recommended_within_tolerance
+        .as_ref()
+        .expect("a named set");
+    assert!(named.outcome.auc >= full - options.max_utility_loss);
+    for point in &whole.frontier {
+        if point.outcome.auc >= full - options.max_utility_loss {
+            assert!(point.leakage.auc >= named.leakage.auc, "{point:?}");
+        }
+    }
+}
+
+/// `explain` with the outcome gives the same outcome values as the scan and
+/// says in words what they mean for the planted pure proxy and the planted
+/// independent predictor.
+#[test]
+fn explain_with_the_outcome_says_how_much_value_survives_the_attribute() {
+    let (table, options, results) = outcome_scan(false);
+    for (name, reading) in [
+        ("branch_area", "the interval covers 0"),
+        ("income_k", "part of its outcome value survives"),
+    ] {
+        let explained = telltale::pipeline::explain_table(&table, 0, name, &options, &Silent)
+            .expect("a scanned feature");
+        assert_eq!(
+            explained.feature.outcome,
+            feature(&results[0], name).outcome
+        );
+        let text = explained.outcome_paragraph.expect("an outcome paragraph");
+        assert!(text.contains(reading), "{name}: {text}");
+    }
 }

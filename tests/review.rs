@@ -73,6 +73,9 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         plan_check: None,
         redundancy_groups: Vec::new(),
         plan_rule: String::new(),
+        frontier: Vec::new(),
+        recommended_within_tolerance: None,
+        outcome_refits: 0,
     }
 }
 
@@ -122,6 +125,7 @@ fn report(results: Vec<ProtectedResult>, sha256: &str) -> Report {
             min_class: 28,
             interval_method: String::new(),
             verdict_surrogate: String::new(),
+            max_utility_loss: None,
         },
         results,
         skipped_columns: Vec::new(),

@@ -58,6 +58,10 @@ pub struct ScanSettingsArgs {
     /// seeded stratified sample of this size (the whole-set AUC always uses every row).
     #[arg(long, default_value_t = 200_000, value_name = "N")]
     pub ablation_rows: usize,
+    /// With `--outcome`: the outcome AUC the recommended feature set may lose
+    /// against the full set; the report names the set within it that cuts leakage most.
+    #[arg(long, default_value_t = telltale::pipeline::DEFAULT_MAX_UTILITY_LOSS, value_name = "AUC")]
+    pub max_utility_loss: f64,
 }
 
 impl ScanSettingsArgs {
@@ -83,6 +87,7 @@ impl ScanSettingsArgs {
             ablation: !self.no_ablation,
             ablation_rows: self.ablation_rows,
             min_class: self.min_class,
+            max_utility_loss: self.max_utility_loss,
             ..ScanOptions::default()
         }
     }

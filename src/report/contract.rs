@@ -105,6 +105,10 @@ pub struct Settings {
     /// Which surrogate the verdicts rest on and how it was chosen.
     #[serde(default)]
     pub verdict_surrogate: String,
+    /// With an outcome: the outcome AUC the recommended frontier set may lose
+    /// against the full set (`--max-utility-loss`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_utility_loss: Option<f64>,
 }
 
 /// Flag thresholds (DESIGN §3 defaults are common practice, not a standard).
@@ -418,6 +422,10 @@ pub struct WholeSet {
     /// Boosted cross-fits run by drop-one and the removal plan (the whole-set fit not counted).
     #[serde(default)]
     pub refits: usize,
+    /// With an outcome: boosted cross-fits of the outcome model the removal
+    /// plan ran to weigh utility (one per feature set weighed, the full set included).
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub outcome_refits: usize,
     /// How each drop-one value was obtained (exact shortcut, refit, screening rule).
     #[serde(default)]
     pub drop_one_rule: String,
@@ -437,6 +445,15 @@ pub struct WholeSet {
     /// The removal plan's rule: candidates, step choice, acceptance and when the target counts as reached.
     #[serde(default)]
     pub plan_rule: String,
+    /// With an outcome: every feature set the removal plan visits, the full
+    /// set first, as (leakage AUC, outcome AUC) with intervals, on the rows
+    /// the plan ran on.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub frontier: Vec<FrontierPoint>,
+    /// The frontier set with the lowest leakage AUC among those whose outcome
+    /// AUC is at most `settings.max_utility_loss` below the full set's.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub recommended_within_tolerance: Option<FrontierPoint>,
 }
 
 /// A pair of features given to the whole-set attacker as one joint column.
@@ -465,6 +482,12 @@ pub struct RedundancyGroup {
 /// Reports written before `ablation` existed always ran it.
 fn ran() -> bool {
     true
+}
+
+/// Counts of zero are left out of the JSON.
+#[allow(clippy::trivially_copy_pass_by_ref)]
+fn is_zero(count: &usize) -> bool {
+    *count == 0
 }
 
 /// The whole-set attacker without one feature.
@@ -506,6 +529,31 @@ pub struct RemovalStep {
     /// Whole-set AUC before this step.
     #[serde(default)]
     pub auc_before: Option<f64>,
+    /// With an outcome: the boosted model's out-of-fold AUC for the outcome
+    /// from every feature not removed so far (the outcome's own folds), the
+    /// utility left after this step (`scan::plan`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outcome_auc_after: Option<f64>,
+    /// Lower end of its 95% interval.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outcome_auc_low: Option<f64>,
+    /// Upper end of its 95% interval.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outcome_auc_high: Option<f64>,
+}
+
+/// One feature set the removal plan visits, as a point of leakage against
+/// utility (`scan::plan::frontier`).
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct FrontierPoint {
+    /// Plan steps taken to reach this set (0: every feature).
+    pub steps: usize,
+    /// Features removed from the full set, in plan order.
+    pub removed: Vec<String>,
+    /// The attacker's AUC for the protected attribute from the set (leakage).
+    pub leakage: AucInterval,
+    /// The boosted model's AUC for the outcome from the set (utility).
+    pub outcome: AucInterval,
 }
 
 /// How the columns were read.

@@ -24,6 +24,10 @@ pub struct Explanation {
     /// The feature's pairs with the largest gain.
     pub partners: Vec<PairResult>,
     pub paragraph: String,
+    /// With an outcome: how much of the feature's outcome value survives
+    /// once the protected attribute is known, in plain words.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outcome_paragraph: Option<String>,
     pub min_cell: u64,
     pub caution: String,
 }
@@ -34,8 +38,14 @@ impl Explanation {
     #[must_use]
     pub fn page(&self) -> Page<'static> {
         let f = &self.feature;
+        let mut opening = vec![Block::paragraph(Role::Body, &self.paragraph)];
+        opening.extend(
+            self.outcome_paragraph
+                .iter()
+                .map(|text| Block::paragraph(Role::Body, text)),
+        );
         let mut sections = vec![
-            Section::untitled(vec![Block::paragraph(Role::Body, &self.paragraph)]),
+            Section::untitled(opening),
             Section::new("Measures", vec![measures(f)]),
             Section::new("Surrogates", vec![Block::Table(surrogates(f))]),
         ];

@@ -3,7 +3,8 @@
 //! the settings list. Nothing here computes a statistic.
 
 use super::{
-    DropOne, FeatureResult, LevelComposition, PairResult, ProtectedResult, Report, WholeSet,
+    DropOne, FeatureResult, FrontierPoint, LevelComposition, PairResult, ProtectedResult, Report,
+    Thresholds, WholeSet,
 };
 use std::cmp::Ordering;
 
@@ -313,4 +314,82 @@ mod tests {
             "&lt;b&gt;&amp;&quot;x&quot;&#39;"
         );
     }
+}
+
+/// Where a feature sits on the leakage–utility map: whether it leaks (its
+/// leakage AUC interval's lower bound reaches the review line) and whether
+/// it adds outcome value beyond the protected attribute (its gain interval
+/// lies above 0).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum MapQuadrant {
+    /// Leaks, and its gain over the attribute is not above 0.
+    RemoveFirst,
+    /// Leaks, and carries outcome value the attribute does not.
+    Justify,
+    /// Does not leak, and carries outcome value.
+    Keep,
+    /// Neither leaks nor adds resolved value.
+    Neither,
+}
+
+impl MapQuadrant {
+    /// The quadrant of `feature`, `None` without an outcome or a leakage AUC.
+    #[must_use]
+    pub fn of(feature: &FeatureResult, thresholds: &Thresholds) -> Option<Self> {
+        let outcome = feature.outcome.as_ref()?;
+        let leaks = feature.auc_low? >= thresholds.review_auc_low;
+        let adds = outcome.gain_low.is_some_and(|low| low > 0.0);
+        Some(match (leaks, adds) {
+            (true, false) => Self::RemoveFirst,
+            (true, true) => Self::Justify,
+            (false, true) => Self::Keep,
+            (false, false) => Self::Neither,
+        })
+    }
+
+    /// The quadrant's label on the map and in the table.
+    #[must_use]
+    pub fn label(self) -> &'static str {
+        match self {
+            Self::RemoveFirst => "leaks, adds nothing: remove first",
+            Self::Justify => "leaks and adds value: justify in writing",
+            Self::Keep => "no leakage, adds value: keep",
+            Self::Neither => "neither",
+        }
+    }
+}
+
+/// A frontier set described by what it leaves out.
+#[must_use]
+pub fn frontier_set(point: &FrontierPoint) -> String {
+    if point.removed.is_empty() {
+        "all features".to_owned()
+    } else {
+        format!("all but {}", point.removed.join(", "))
+    }
+}
+
+/// The sentence naming the frontier set within the utility tolerance.
+#[must_use]
+pub fn frontier_choice(whole: &WholeSet, max_loss: f64) -> Option<String> {
+    let named = whole.recommended_within_tolerance.as_ref()?;
+    let full = whole.frontier.first()?;
+    Some(format!(
+        "Within an outcome AUC loss of {max_loss:.3} from the full set's {:.3}, the set that \
+         leaks least is {}: leakage AUC {}, outcome AUC {}. Read the intervals before relying \
+         on a difference between two sets; whether a remaining proxy is justified is a legal \
+         judgment for the organisation and its counsel.",
+        full.outcome.auc,
+        frontier_set(named),
+        auc_interval(
+            Some(named.leakage.auc),
+            Some(named.leakage.auc_low),
+            Some(named.leakage.auc_high)
+        ),
+        auc_interval(
+            Some(named.outcome.auc),
+            Some(named.outcome.auc_low),
+            Some(named.outcome.auc_high)
+        ),
+    ))
 }

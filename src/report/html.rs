@@ -127,6 +127,16 @@ fn svg_of(chart: &Chart) -> String {
             whole,
             target_auc,
         } => svg::removal_steps(title, whole, *target_auc),
+        Chart::LeakageUtilityMap {
+            title,
+            features,
+            thresholds,
+        } => svg::tradeoff::leakage_utility_map(title, features, thresholds),
+        Chart::Frontier {
+            title,
+            whole,
+            max_loss,
+        } => svg::tradeoff::frontier(title, whole, *max_loss),
     }
 }
 

@@ -2,6 +2,7 @@
 //! number formats. A new report section is one function here, listed in
 //! [`report_page`] or [`protected_section`].
 
+use super::format::MapQuadrant;
 use super::format::{self, TOP_PAIRS};
 use super::page::{
     Block, Cell, CellStyle, Chart, Column, Heading, KeyValues, Page, Role, Row, Section, Table,
@@ -9,7 +10,7 @@ use super::page::{
 use super::svg::{self, MAX_ROC_CURVES, RocSeries};
 use super::{
     AddedSource, AucInterval, FeatureResult, LevelComposition, PairResult, PolicyOutcome,
-    ProtectedResult, Report, WholeSet,
+    ProtectedResult, Report, Settings, Thresholds, WholeSet,
 };
 
 /// Lead-in of the caution every report carries.
@@ -78,14 +79,10 @@ fn protected_section<'a>(result: &'a ProtectedResult, report: &'a Report) -> Sec
         ),
         Block::Section(features_section(result, report)),
     ];
-    blocks.extend(outcome_section(result).map(Block::Section));
+    blocks.extend(outcome_section(result, &settings.thresholds).map(Block::Section));
     blocks.extend(pairs_section(result).map(Block::Section));
     if let Some(whole) = &result.whole_set {
-        blocks.push(Block::Section(whole_set_section(
-            whole,
-            result,
-            settings.target_auc,
-        )));
+        blocks.push(Block::Section(whole_set_section(whole, result, settings)));
     }
     blocks.extend(compositions_section(result, settings.min_cell).map(Block::Section));
     Section {
@@ -195,8 +192,12 @@ fn roc_section<'a>(
 }
 
 /// With an outcome: each feature's leakage beside its value for the outcome
-/// and its leakage among people with the same outcome (features in AUC order).
-fn outcome_section(result: &ProtectedResult) -> Option<Section<'static>> {
+/// and its leakage among people with the same outcome (features in AUC order),
+/// the map of the two, and each feature's reading of the map.
+fn outcome_section<'a>(
+    result: &'a ProtectedResult,
+    thresholds: &'a Thresholds,
+) -> Option<Section<'a>> {
     let ranked = format::ranked_features(result);
     let rows: Vec<Row> = ranked
         .iter()
@@ -223,6 +224,9 @@ fn outcome_section(result: &ProtectedResult) -> Option<Section<'static>> {
                     o.protected_auc_within_outcome_high,
                 )),
                 Cell::verdict(f.flag),
+                Cell::plain(
+                    MapQuadrant::of(f, thresholds).map_or(format::NOT_COMPUTED, MapQuadrant::label),
+                ),
             ]))
         })
         .collect();
@@ -238,8 +242,28 @@ fn outcome_section(result: &ProtectedResult) -> Option<Section<'static>> {
             Column::numeric("outcome gain over the attribute [95% CI]"),
             Column::numeric("leakage within outcome [95% CI]"),
             Column::text("flag"),
+            Column::text("reading"),
         ],
         rows,
+    };
+    let map = Block::Figure {
+        chart: Chart::LeakageUtilityMap {
+            title: format!("Leakage and legitimate value for {}", result.protected),
+            features: ranked
+                .iter()
+                .copied()
+                .filter(|f| f.outcome.is_some())
+                .collect(),
+            thresholds,
+        },
+        caption: format!(
+            "Each feature by its leakage AUC (alone) and its outcome gain over the protected \
+             attribute, with 95% intervals, coloured by flag. The dashed vertical line is the \
+             review line ({:.2}), the dashed horizontal line zero gain; a feature's reading in \
+             the table uses its intervals (leaks: the leakage interval reaches the review line; \
+             adds value: the gain interval lies above 0).",
+            thresholds.review_auc_low
+        ),
     };
     let note = "A proxy whose outcome gain covers 0 carries nothing about the outcome that the \
                 protected attribute does not: the first to remove. A proxy with a gain above 0 \
@@ -247,7 +271,7 @@ fn outcome_section(result: &ProtectedResult) -> Option<Section<'static>> {
                 and its counsel, not for this screen.";
     Some(Section::new(
         "Leakage and legitimate value",
-        vec![Block::Table(table), Block::paragraph(Role::Body, note)],
+        vec![map, Block::Table(table), Block::paragraph(Role::Body, note)],
     ))
 }
 
@@ -312,7 +336,7 @@ pub fn interval_cell(auc: f64, low: f64, high: f64) -> Cell {
 fn whole_set_section<'a>(
     whole: &'a WholeSet,
     result: &ProtectedResult,
-    target_auc: f64,
+    settings: &Settings,
 ) -> Section<'a> {
     let hand_till = whole
         .hand_till
@@ -345,7 +369,12 @@ fn whole_set_section<'a>(
         ));
     }
     blocks.extend(drop_one_section(whole).map(Block::Section));
-    blocks.push(Block::Section(removal_section(whole, result, target_auc)));
+    blocks.push(Block::Section(removal_section(
+        whole,
+        result,
+        settings.target_auc,
+    )));
+    blocks.extend(frontier_section(whole, result, settings.max_utility_loss).map(Block::Section));
     Section::new("Whole feature set", blocks)
 }
 
@@ -392,32 +421,119 @@ fn removal_section<'a>(
             .to_owned(),
     }];
     if !whole.removal_plan.is_empty() {
-        blocks.push(Block::Table(Table {
-            name: "plan",
-            columns: vec![
-                Column::numeric("step"),
-                Column::text("remove"),
-                Column::numeric("AUC after [95% CI]"),
-            ],
-            rows: whole
-                .removal_plan
-                .iter()
-                .enumerate()
-                .map(|(i, s)| {
-                    Row::from(vec![
-                        Cell::plain((i + 1).to_string()),
-                        Cell::name(&s.remove),
-                        interval_cell(s.auc_after, s.auc_low, s.auc_high),
-                    ])
-                })
-                .collect(),
-        }));
+        blocks.push(Block::Table(plan_table(whole)));
     }
     blocks.push(Block::paragraph(
         Role::Body,
         format::removal_outcome(whole, target_auc),
     ));
     Section::new(format!("Removal plan (target AUC {target_auc:.2})"), blocks)
+}
+
+/// The plan's steps; with an outcome, the outcome AUC left after each.
+fn plan_table(whole: &WholeSet) -> Table {
+    let with_outcome = whole
+        .removal_plan
+        .iter()
+        .any(|s| s.outcome_auc_after.is_some());
+    let mut columns = vec![
+        Column::numeric("step"),
+        Column::text("remove"),
+        Column::numeric("AUC after [95% CI]"),
+    ];
+    if with_outcome {
+        columns.push(Column::numeric("outcome AUC after [95% CI]"));
+    }
+    let rows = whole
+        .removal_plan
+        .iter()
+        .enumerate()
+        .map(|(i, s)| {
+            let mut cells = vec![
+                Cell::plain((i + 1).to_string()),
+                Cell::name(&s.remove),
+                interval_cell(s.auc_after, s.auc_low, s.auc_high),
+            ];
+            if with_outcome {
+                cells.push(Cell::plain(format::auc_interval(
+                    s.outcome_auc_after,
+                    s.outcome_auc_low,
+                    s.outcome_auc_high,
+                )));
+            }
+            Row::from(cells)
+        })
+        .collect();
+    Table {
+        name: "plan",
+        columns,
+        rows,
+    }
+}
+
+/// With an outcome: the feature sets the plan visits as leakage against
+/// utility, and the set named within the tolerance.
+fn frontier_section<'a>(
+    whole: &'a WholeSet,
+    result: &ProtectedResult,
+    max_loss: Option<f64>,
+) -> Option<Section<'a>> {
+    let max_loss = max_loss?;
+    if whole.frontier.is_empty() {
+        return None;
+    }
+    let named = whole.recommended_within_tolerance.as_ref();
+    let full = whole.frontier[0].outcome.auc;
+    let rows = whole
+        .frontier
+        .iter()
+        .map(|p| {
+            let standing = if named == Some(p) {
+                "named set"
+            } else if p.outcome.auc >= full - max_loss {
+                "within tolerance"
+            } else {
+                "beyond tolerance"
+            };
+            Row::from(vec![
+                Cell::plain(p.steps.to_string()),
+                Cell::name(format::frontier_set(p)),
+                interval_cell(p.leakage.auc, p.leakage.auc_low, p.leakage.auc_high),
+                interval_cell(p.outcome.auc, p.outcome.auc_low, p.outcome.auc_high),
+                Cell::plain(standing),
+            ])
+        })
+        .collect();
+    let mut blocks = vec![
+        Block::Figure {
+            chart: Chart::Frontier {
+                title: format!("Leakage against utility for {}", result.protected),
+                whole,
+                max_loss,
+            },
+            caption: format!(
+                "Each feature set the removal plan visits (numbered by step; `all` is every \
+                 feature) by its leakage AUC and its outcome AUC, with 95% intervals. Dashed \
+                 line: the full set's outcome AUC less the tolerated loss ({max_loss:.3}); the \
+                 ringed set leaks least above it."
+            ),
+        },
+        Block::Table(Table {
+            name: "frontier",
+            columns: vec![
+                Column::numeric("steps"),
+                Column::text("feature set"),
+                Column::numeric("leakage AUC [95% CI]"),
+                Column::numeric("outcome AUC [95% CI]"),
+                Column::text("tolerance"),
+            ],
+            rows,
+        }),
+    ];
+    blocks.extend(
+        format::frontier_choice(whole, max_loss).map(|text| Block::paragraph(Role::Body, text)),
+    );
+    Some(Section::new("Leakage against utility", blocks))
 }
 
 fn compositions_section(result: &ProtectedResult, min_cell: u64) -> Option<Section<'static>> {
@@ -589,7 +705,7 @@ mod tests {
     use crate::report::html::HtmlRenderer;
     use crate::report::markdown::MarkdownRenderer;
     use crate::report::page::Backend;
-    use crate::report::sample::{AWKWARD_NAME, sample_report};
+    use crate::report::sample::{AWKWARD_NAME, sample_report, sample_report_with_outcome};
     use crate::report::terminal::TerminalRenderer;
 
     #[test]
@@ -642,5 +758,26 @@ mod tests {
             assert!(markdown.contains(full_only), "{full_only}");
             assert!(!terminal.contains(full_only), "{full_only}");
         }
+    }
+
+    #[test]
+    fn the_outcome_map_frontier_and_plan_columns_reach_every_format() {
+        let report = sample_report_with_outcome();
+        let md = MarkdownRenderer.render(&report);
+        let html = HtmlRenderer.render(&report);
+        let text = TerminalRenderer { colour: false }.render(&report);
+        for out in [&md, &html, &text] {
+            for needle in [
+                "outcome AUC after",
+                "Leakage against utility",
+                "named set",
+                "leaks, adds nothing: remove first",
+                "leaks and adds value: justify in writing",
+            ] {
+                assert!(out.contains(needle), "{needle} missing: {out}");
+            }
+        }
+        assert!(html.contains("chart-map") && html.contains("chart-frontier"));
+        assert!(!md.contains(AWKWARD_NAME) && !html.contains(AWKWARD_NAME));
     }
 }

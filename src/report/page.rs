@@ -329,6 +329,25 @@ pub enum Chart<'a> {
         /// Pairs by gain, largest first.
         pairs: Vec<&'a PairResult>,
     },
+    /// Each feature by its leakage AUC and its outcome gain over the
+    /// protected attribute, with the quadrants of [`super::format::MapQuadrant`].
+    LeakageUtilityMap {
+        /// Chart title.
+        title: String,
+        /// Features with an outcome.
+        features: Vec<&'a FeatureResult>,
+        /// The review line drawn across the leakage axis.
+        thresholds: &'a Thresholds,
+    },
+    /// The removal plan's feature sets by leakage AUC and outcome AUC.
+    Frontier {
+        /// Chart title.
+        title: String,
+        /// The whole-set result holding the frontier.
+        whole: &'a WholeSet,
+        /// The outcome AUC loss tolerated for the named set.
+        max_loss: f64,
+    },
     /// Whole-set AUC after each greedy removal.
     RemovalSteps {
         /// Chart title.

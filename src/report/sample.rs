@@ -150,6 +150,9 @@ fn removal_step(remove: &str, auc: f64) -> RemovalStep {
         auc_high: auc + 0.015,
         features: vec![remove.to_owned()],
         auc_before: None,
+        outcome_auc_after: None,
+        outcome_auc_low: None,
+        outcome_auc_high: None,
     }
 }
 
@@ -191,6 +194,9 @@ fn whole_set() -> WholeSet {
         plan_check: None,
         redundancy_groups: Vec::new(),
         plan_rule: String::new(),
+        frontier: Vec::new(),
+        recommended_within_tolerance: None,
+        outcome_refits: 0,
     }
 }
 
@@ -289,6 +295,7 @@ pub fn sample_report() -> Report {
             min_class: 28,
             interval_method: "Poisson bootstrap of the cross-fit, 200 replicates".into(),
             verdict_surrogate: "frequency".into(),
+            max_utility_loss: None,
         },
         results: vec![sex_result(), age_result()],
         skipped_columns: vec![SkippedColumnInfo {
@@ -337,4 +344,64 @@ pub fn sample_report() -> Report {
         notes: vec!["customer_ref: AUC not computed (identifier-like column).".into()],
         caution: crate::CAUTION.into(),
     }
+}
+
+/// An illustrative interval of half-width 0.01 around `auc`.
+fn around(auc: f64) -> AucInterval {
+    AucInterval {
+        auc,
+        auc_low: auc - 0.01,
+        auc_high: auc + 0.01,
+        auc_se: 0.005,
+    }
+}
+
+/// The sample report as scanned with an outcome: every feature of the first
+/// attribute gets outcome values (the i-th feature a gain of 0.05·i), each
+/// plan step its outcome AUC, and the plan a frontier whose second set is named.
+pub fn sample_report_with_outcome() -> Report {
+    let mut report = sample_report();
+    report.settings.max_utility_loss = Some(0.02);
+    let result = &mut report.results[0];
+    for (i, feature) in result.features.iter_mut().enumerate() {
+        let gain = 0.05 * i as f64;
+        feature.outcome = Some(FeatureOutcome {
+            auc: Some(0.6),
+            auc_low: Some(0.58),
+            auc_high: Some(0.62),
+            gain_over_protected: Some(gain),
+            gain_low: Some(gain - 0.02),
+            gain_high: Some(gain + 0.02),
+            protected_auc_within_outcome: feature.auc,
+            protected_auc_within_outcome_low: feature.auc_low,
+            protected_auc_within_outcome_high: feature.auc_high,
+        });
+    }
+    let whole = result
+        .whole_set
+        .as_mut()
+        .expect("the sample has a whole set");
+    whole.outcome = Some(around(0.75));
+    let mut removed = Vec::new();
+    whole.frontier = vec![FrontierPoint {
+        steps: 0,
+        removed: Vec::new(),
+        leakage: around(whole.auc),
+        outcome: around(0.75),
+    }];
+    for (i, step) in whole.removal_plan.iter_mut().enumerate() {
+        let outcome = 0.745 - 0.03 * i as f64;
+        step.outcome_auc_after = Some(outcome);
+        step.outcome_auc_low = Some(outcome - 0.01);
+        step.outcome_auc_high = Some(outcome + 0.01);
+        removed.push(step.remove.clone());
+        whole.frontier.push(FrontierPoint {
+            steps: i + 1,
+            removed: removed.clone(),
+            leakage: around(step.auc_after),
+            outcome: around(outcome),
+        });
+    }
+    whole.recommended_within_tolerance = Some(whole.frontier[1].clone());
+    report
 }

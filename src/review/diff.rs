@@ -9,7 +9,7 @@ use crate::report::page::{
     Backend, Block, Cell, CellStyle, Column, Detail, Page, Role, Row, Section, Table, Tone,
 };
 use crate::report::terminal::TerminalRenderer;
-use crate::report::{FeatureResult, Flag, ProtectedResult, Report, SCHEMA_VERSION};
+use crate::report::{FeatureOutcome, FeatureResult, Flag, ProtectedResult, Report, SCHEMA_VERSION};
 use crate::stats::two_sided_p_value;
 use serde::Serialize;
 use std::collections::HashMap;
@@ -199,6 +199,12 @@ pub struct ProtectedDiff {
     pub auc_changes: Vec<AucChange>,
     /// The whole-set attacker's AUC, when both reports have one.
     pub whole_set: Option<AucChange>,
+    /// With an outcome in both reports: each common feature's outcome AUC
+    /// and gain over the protected attribute, then the whole set's outcome
+    /// AUC, tested as the AUC changes are (standard errors read from the
+    /// 95% intervals where the report stores no standard error).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub outcome_changes: Vec<AucChange>,
 }
 
 /// A feature whose verdict changed.
@@ -297,6 +303,25 @@ impl AucPoint {
         }
     }
 
+    /// A value with a 95% normal interval: its standard error is the
+    /// interval's width over 2 × 1.959964.
+    fn of_interval(value: Option<f64>, low: Option<f64>, high: Option<f64>, model: &str) -> Self {
+        Self {
+            auc: value,
+            se: low.zip(high).map(|(l, h)| (h - l) / (2.0 * Z_975)),
+            surrogate: Some(model.to_string()),
+        }
+    }
+
+    fn of_whole_set_outcome(result: &ProtectedResult) -> Option<Self> {
+        let w = result.whole_set.as_ref()?;
+        w.outcome.as_ref().map(|o| Self {
+            auc: Some(o.auc),
+            se: Some(o.auc_se),
+            surrogate: Some(w.surrogate.clone()),
+        })
+    }
+
     fn of_whole_set(result: &ProtectedResult) -> Option<Self> {
         result.whole_set.as_ref().map(|w| Self {
             auc: Some(w.auc),
@@ -304,6 +329,50 @@ impl AucPoint {
             surrogate: Some(w.surrogate.clone()),
         })
     }
+}
+
+/// The 97.5% point of the standard normal.
+const Z_975: f64 = 1.959_964;
+
+/// Outcome AUC and gain of each feature in both reports, then the whole
+/// set's outcome AUC.
+fn outcome_changes(
+    order: &[&str],
+    old: &HashMap<&str, &FeatureResult>,
+    new: &HashMap<&str, &FeatureResult>,
+    whole: Option<(AucPoint, AucPoint)>,
+    tests: Tests,
+) -> Vec<AucChange> {
+    let test = |name: &str, o: AucPoint, n: AucPoint| {
+        AucChange::test(name, o, n, tests.alpha, tests.min_effect)
+    };
+    let utility =
+        |o: &FeatureOutcome| AucPoint::of_interval(o.auc, o.auc_low, o.auc_high, "outcome");
+    let gain = |o: &FeatureOutcome| {
+        AucPoint::of_interval(
+            o.gain_over_protected,
+            o.gain_low,
+            o.gain_high,
+            "outcome gain",
+        )
+    };
+    order
+        .iter()
+        .filter_map(|name| {
+            let o = old.get(name)?.outcome.as_ref()?;
+            let n = new.get(name)?.outcome.as_ref()?;
+            Some([
+                test(&format!("{name}: outcome AUC"), utility(o), utility(n)),
+                test(
+                    &format!("{name}: outcome gain over the attribute"),
+                    gain(o),
+                    gain(n),
+                ),
+            ])
+        })
+        .flatten()
+        .chain(whole.map(|(o, n)| test("whole set: outcome AUC", o, n)))
+        .collect()
 }
 
 fn combined_se(old: Option<f64>, new: Option<f64>) -> Option<f64> {
@@ -398,6 +467,14 @@ impl ProtectedDiff {
             .and_then(AucPoint::of_whole_set)
             .zip(new.and_then(AucPoint::of_whole_set))
             .map(|(o, n)| AucChange::test("whole set", o, n, tests.alpha, tests.min_effect));
+        let outcome_changes = outcome_changes(
+            &new_order,
+            &old_features,
+            &new_features,
+            old.and_then(AucPoint::of_whole_set_outcome)
+                .zip(new.and_then(AucPoint::of_whole_set_outcome)),
+            tests,
+        );
         Self {
             protected: protected.to_string(),
             status,
@@ -406,6 +483,7 @@ impl ProtectedDiff {
             flag_changes,
             auc_changes,
             whole_set,
+            outcome_changes,
         }
     }
 }
@@ -742,6 +820,28 @@ impl ProtectedDiff {
             ));
             blocks.push(Block::Table(self.auc_table()));
         }
+        if !self.outcome_changes.is_empty() {
+            let significant = self
+                .outcome_changes
+                .iter()
+                .filter(|c| c.significant)
+                .count();
+            blocks.push(Block::paragraph(
+                Role::Body,
+                format!(
+                    "Outcome AUCs and gains over the attribute, the same test: {significant} of {} \
+                     significant.",
+                    self.outcome_changes.len()
+                ),
+            ));
+            blocks.push(Block::Table(change_table(
+                "outcome-changes",
+                "measure",
+                self.outcome_changes
+                    .iter()
+                    .map(|c| (c, summary_if(c.significant))),
+            )));
+        }
         Section::new(format!("{} ({status})", self.protected), blocks)
     }
 
@@ -777,46 +877,62 @@ impl ProtectedDiff {
 
     fn auc_table(&self) -> Table {
         let whole = self.whole_set.iter().map(|c| (c, Detail::Summary));
-        let rows = self
-            .auc_changes
-            .iter()
-            .map(|c| (c, summary_if(c.significant)))
-            .chain(whole)
-            .map(|(c, detail)| {
-                let name = if !c.significant {
-                    Cell::plain(&c.name)
-                } else if c.rose_significantly() {
-                    Cell::styled(&c.name, CellStyle::Toned(Tone::Alarm))
-                } else {
-                    Cell::styled(&c.name, CellStyle::Toned(Tone::Calm))
-                };
-                Row {
-                    cells: vec![
-                        name,
-                        Cell::plain(format::fixed(c.old_auc, 3)),
-                        Cell::plain(format::fixed(c.new_auc, 3)),
-                        Cell::plain(signed_or_missing(c.change)),
-                        Cell::plain(format::fixed(c.z, 2)),
-                        Cell::plain(p_text(c.p_value)),
-                        Cell::plain(yes_no(c.significant)),
-                    ],
-                    detail,
-                }
-            })
-            .collect();
-        Table {
-            name: "auc-changes",
-            columns: vec![
-                Column::text("feature"),
-                Column::numeric("old AUC"),
-                Column::numeric("new AUC"),
-                Column::numeric("change"),
-                Column::numeric("z"),
-                Column::numeric("p"),
-                Column::text("significant"),
-            ],
-            rows,
-        }
+        change_table(
+            "auc-changes",
+            "feature",
+            self.auc_changes
+                .iter()
+                .map(|c| (c, summary_if(c.significant)))
+                .chain(whole),
+        )
+    }
+}
+
+/// Tested changes as a table, significant ones toned: for leakage a rise
+/// is an alarm and a fall calm; for outcome measures (`outcome-changes`)
+/// either way is worth a look.
+fn change_table<'c>(
+    name: &'static str,
+    first: &str,
+    changes: impl Iterator<Item = (&'c AucChange, Detail)>,
+) -> Table {
+    let rows = changes
+        .map(|(c, detail)| {
+            let label = if !c.significant {
+                Cell::plain(&c.name)
+            } else if name == "outcome-changes" {
+                Cell::styled(&c.name, CellStyle::Toned(Tone::Caution))
+            } else if c.rose_significantly() {
+                Cell::styled(&c.name, CellStyle::Toned(Tone::Alarm))
+            } else {
+                Cell::styled(&c.name, CellStyle::Toned(Tone::Calm))
+            };
+            Row {
+                cells: vec![
+                    label,
+                    Cell::plain(format::fixed(c.old_auc, 3)),
+                    Cell::plain(format::fixed(c.new_auc, 3)),
+                    Cell::plain(signed_or_missing(c.change)),
+                    Cell::plain(format::fixed(c.z, 2)),
+                    Cell::plain(p_text(c.p_value)),
+                    Cell::plain(yes_no(c.significant)),
+                ],
+                detail,
+            }
+        })
+        .collect();
+    Table {
+        name,
+        columns: vec![
+            Column::text(first),
+            Column::numeric("old AUC"),
+            Column::numeric("new AUC"),
+            Column::numeric("change"),
+            Column::numeric("z"),
+            Column::numeric("p"),
+            Column::text("significant"),
+        ],
+        rows,
     }
 }
 
@@ -830,4 +946,52 @@ pub fn render_diff_text(diff: &ReportDiff, colour: bool) -> String {
 #[must_use]
 pub fn render_diff_markdown(diff: &ReportDiff) -> String {
     MarkdownRenderer.render_page(&diff.page())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::report::sample::{AWKWARD_NAME, sample_report_with_outcome};
+
+    #[test]
+    fn outcome_values_are_compared_with_the_auc_rule_and_escaped() {
+        // The sample's intervals are ±0.02 wide around each gain, so a gain
+        // raised by 0.2 is about 14 combined standard errors away: significant
+        // at any usual α and far above the minimum effect; the untouched
+        // values do not change at all.
+        let old = sample_report_with_outcome();
+        let mut new = old.clone();
+        let raised = new.results[0].features[1].name.clone();
+        let outcome = new.results[0].features[1]
+            .outcome
+            .as_mut()
+            .expect("sample outcome");
+        for value in [
+            &mut outcome.gain_over_protected,
+            &mut outcome.gain_low,
+            &mut outcome.gain_high,
+        ] {
+            *value = value.map(|v| v + 0.2);
+        }
+        let diff = compare(&old, &new, DEFAULT_ALPHA, DEFAULT_MIN_EFFECT);
+        let changes = &diff.protected[0].outcome_changes;
+        let features = old.results[0].features.len();
+        assert_eq!(changes.len(), 2 * features + 1);
+        let significant: Vec<&str> = changes
+            .iter()
+            .filter(|c| c.significant)
+            .map(|c| c.name.as_str())
+            .collect();
+        assert_eq!(
+            significant,
+            [format!("{raised}: outcome gain over the attribute")]
+        );
+        assert_eq!(
+            changes.last().map(|c| c.name.as_str()),
+            Some("whole set: outcome AUC")
+        );
+        let markdown = render_diff_markdown(&diff);
+        assert!(markdown.contains("outcome gain over the attribute"));
+        assert!(!markdown.contains(AWKWARD_NAME), "{markdown}");
+    }
 }

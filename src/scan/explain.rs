@@ -4,13 +4,14 @@
 
 use super::composition::composition;
 use super::evaluate::Target;
+use super::outcome::OutcomeScan;
 use super::pairs::evaluate_pairs;
 use super::singles::scan_singles;
 use super::verdict::interval_text;
 use super::{Progress, ScanOptions};
 use crate::data::EncodedTable;
 use crate::report::explanation::{DOMINATED_SHARE, Explanation};
-use crate::report::{FeatureResult, Flag, LevelComposition, PairResult};
+use crate::report::{FeatureOutcome, FeatureResult, Flag, LevelComposition, PairResult};
 use crate::stats::contingency::Contingency;
 
 /// Partners listed for the feature.
@@ -67,10 +68,17 @@ pub fn explain(
         .iter()
         .filter(|l| l.shares.iter().flatten().any(|&s| s >= DOMINATED_SHARE))
         .count();
-    let result = singles
+    let mut result = singles
         .into_iter()
         .find(|f| f.name == feature)
         .ok_or_else(|| ExplainError::UnknownFeature(feature.to_string(), String::new()))?;
+    let outcome_paragraph = table.outcome.as_ref().map(|outcome| {
+        let values =
+            OutcomeScan::new(outcome, &target, options).one_feature(column, options, progress);
+        let text = outcome_paragraph(&protected.name, &outcome.name, &column.name, &values);
+        result.outcome = Some(values);
+        text
+    });
     let paragraph = paragraph(
         &protected.name,
         &result,
@@ -88,6 +96,7 @@ pub fn explain(
         levels_with_shares,
         partners,
         paragraph,
+        outcome_paragraph,
         min_cell: options.min_cell,
         caution: crate::CAUTION.to_string(),
     })
@@ -136,6 +145,72 @@ fn paragraph(
             p.gain,
             p.gain_low.unwrap_or(f64::NAN),
             p.gain_high.unwrap_or(f64::NAN)
+        ));
+    }
+    text
+}
+
+/// How much of the feature's outcome value survives once the protected
+/// attribute is known, and whether it still separates the groups among
+/// people with the same outcome, in plain words.
+fn outcome_paragraph(
+    protected: &str,
+    outcome: &str,
+    name: &str,
+    values: &FeatureOutcome,
+) -> String {
+    let mut text = match values.auc {
+        Some(auc) => format!(
+            "With the outcome `{outcome}`: `{name}` alone predicts it with AUC {}, {:.2} above chance.",
+            interval_text(auc, values.auc_low, values.auc_high),
+            auc - 0.5
+        ),
+        None => {
+            format!("With the outcome `{outcome}`: no surrogate could predict it from `{name}`.")
+        }
+    };
+    if let Some(gain) = values.gain_over_protected {
+        let bounds = values.gain_low.zip(values.gain_high);
+        let interval = bounds.map_or_else(
+            || "interval not estimable".to_string(),
+            |(low, high)| format!("{low:+.3} to {high:+.3}"),
+        );
+        let reading = match bounds {
+            Some((low, _)) if low > 0.0 => format!(
+                "part of its outcome value survives once `{protected}` is known: it carries \
+                 information about the outcome that the attribute does not"
+            ),
+            Some((_, high)) if high < 0.0 => format!(
+                "none of its outcome value survives once `{protected}` is known: adding it to the \
+                 attribute makes the outcome prediction worse"
+            ),
+            Some(_) => format!(
+                "no outcome value is shown to survive once `{protected}` is known: the interval \
+                 covers 0, so what it tells about the outcome may come through the attribute alone"
+            ),
+            None => "whether any of its outcome value survives is not settled".to_string(),
+        };
+        text.push_str(&format!(
+            " Added to `{protected}`, it changes the outcome AUC by {gain:+.3} ({interval}): {reading}."
+        ));
+    }
+    if let Some(within) = values.protected_auc_within_outcome {
+        let separates = values
+            .protected_auc_within_outcome_low
+            .is_some_and(|low| low > 0.5);
+        let reading = if separates {
+            "it still separates the groups among people with the same outcome, so a model that \
+             uses it cannot give the groups equal error rates (equalized odds)"
+        } else {
+            "it does not measurably separate the groups among people with the same outcome"
+        };
+        text.push_str(&format!(
+            " Among people with the same outcome it recovers `{protected}` with AUC {}: {reading}.",
+            interval_text(
+                within,
+                values.protected_auc_within_outcome_low,
+                values.protected_auc_within_outcome_high
+            )
         ));
     }
     text

@@ -14,10 +14,12 @@ mod pairs;
 mod plan;
 pub mod progress;
 mod singles;
+mod utility;
 mod verdict;
 mod whole;
 
 pub use progress::{Progress, Silent};
+pub use utility::DEFAULT_MAX_UTILITY_LOSS;
 pub use verdict::flag_for;
 
 use crate::data::{EncodedTable, ProtectedAttribute};
@@ -72,6 +74,9 @@ pub struct ScanOptions {
     /// Smallest protected class (rows) for which AUC flags and gates are
     /// issued; see [`DEFAULT_MIN_CLASS`].
     pub min_class: u64,
+    /// With an outcome: the outcome AUC the recommended frontier set may
+    /// lose against the full set; see [`utility::DEFAULT_MAX_UTILITY_LOSS`].
+    pub max_utility_loss: f64,
 }
 
 /// Default minimum class size: the smallest class at which an AUC of 0.80
@@ -96,6 +101,7 @@ impl Default for ScanOptions {
             ablation: true,
             ablation_rows: 200_000,
             min_class: DEFAULT_MIN_CLASS,
+            max_utility_loss: utility::DEFAULT_MAX_UTILITY_LOSS,
         }
     }
 }
@@ -144,7 +150,14 @@ fn scan_attribute(
             let joints = joints::nested_joints(&table.features, &target, options, progress);
             let inputs = whole::AttackInputs::new(&table.features, joints);
             let flagged = flagged_features(&table.features, &features);
-            whole::scan_whole_set(&inputs, &target, options, &flagged, progress)
+            whole::scan_whole_set(
+                &inputs,
+                &target,
+                options,
+                &flagged,
+                table.outcome.as_ref(),
+                progress,
+            )
         })
         .flatten();
     if let Some(outcome) = &table.outcome {
@@ -327,6 +340,7 @@ pub fn build_report(
             verdict_surrogate: "frequency surrogate for every column kind, fixed in advance \
                 (no best-of-several selection); logistic and tree AUCs are information only"
                 .to_string(),
+            max_utility_loss: table.outcome.is_some().then_some(options.max_utility_loss),
         },
         results,
         skipped_columns: table

@@ -67,6 +67,22 @@ impl<'a> OutcomeScan<'a> {
         }
     }
 
+    /// The outcome values of one feature alone (for `explain`).
+    pub fn one_feature(
+        &self,
+        column: &EncodedColumn,
+        options: &ScanOptions,
+        progress: &dyn Progress,
+    ) -> FeatureOutcome {
+        let utility = scan_singles(
+            std::slice::from_ref(column),
+            &self.outcome,
+            options,
+            progress,
+        );
+        self.feature_outcome(column, utility.first())
+    }
+
     /// One feature's utility, gain over the protected attribute and leakage within outcome strata.
     fn feature_outcome(
         &self,

@@ -13,9 +13,10 @@
 use super::ScanOptions;
 use super::evaluate::{Evaluation, Target};
 use super::pairs::pairs_with;
+use super::utility::{Utility, tradeoff};
 use super::whole::{Attack, AttackInputs, WorkingSet, attack, without, working_set};
 use crate::data::EncodedColumn;
-use crate::report::{AucInterval, RedundancyGroup, RemovalStep};
+use crate::report::{AucInterval, FrontierPoint, RedundancyGroup, RemovalStep};
 use crate::stats::contingency::Contingency;
 use crate::stats::information::{entropy, miller_madow_mutual_information};
 use rayon::prelude::*;
@@ -35,37 +36,62 @@ pub struct PlanInputs<'a, 'b> {
     pub options: &'a ScanOptions,
     /// Features the single-feature scan flagged.
     pub flagged: &'a [usize],
+    /// The outcome model, when the scan has an outcome: the plan then weighs
+    /// leakage removed against utility lost (see [`tradeoff`]).
+    pub utility: Option<&'a Utility<'b>>,
 }
 
-/// The plan's steps, whether it reached the target, the groups it tested and
-/// the full-width check of its result.
+/// The plan's steps, whether it reached the target, the groups it tested,
+/// the full-width check of its result and, with an outcome, its frontier.
 #[derive(Default)]
 pub struct Plan {
     pub steps: Vec<RemovalStep>,
     pub reached: bool,
     pub groups: Vec<RedundancyGroup>,
     pub check: Option<AucInterval>,
+    pub frontier: Vec<FrontierPoint>,
 }
 
 /// The plan's rule as the report states it.
-pub fn plan_rule(options: &ScanOptions) -> String {
-    format!(
+pub fn plan_rule(options: &ScanOptions, with_outcome: bool) -> String {
+    let rule = format!(
         "Each step refits the attacker without each candidate: the {} features the current \
          attacker uses most (by split gain), every flagged feature and both members of every \
          joint column, plus each group of candidates that rebuild each other (one carries at \
          least {:.0}% of the other's information, Miller–Madow mutual information over the \
          smaller entropy), removed as one. Features the current attacker never splits on are \
-         not candidates: removing them leaves the AUC unchanged. The step taken is the one \
-         that lowers the AUC most per feature removed, and only if it lowers the AUC; otherwise \
-         the plan stops. The target counts as reached when the upper bound of the 95% interval \
+         not candidates: removing them leaves the AUC unchanged. Without an outcome, the step \
+         taken is the one that lowers the AUC most per feature removed, and only if it lowers \
+         the AUC; otherwise the plan stops. The target counts as reached when the upper bound of the 95% interval \
          of the AUC after a step is below {:.2}. Steps refit on the screened set (see drop-one); \
          the result is then refitted with every feature not removed, and when that check's \
          upper bound is not below the target, the plan screens again from the check and goes on.",
         options.removal_candidates,
         REDUNDANCY * 100.0,
         options.target_auc
+    );
+    if !with_outcome {
+        return rule;
+    }
+    format!(
+        "{rule} With an outcome, each removal that lowers the AUC is also weighed by the outcome \
+         AUC it costs (the boosted model for the outcome refitted on every feature not removed, \
+         at full width, on the outcome's own folds): the step taken removes the most leakage \
+         AUC per unit of outcome AUC lost, losses under {:.3} per feature removed counting as \
+         {:.3} per feature (so among removals that cost nothing the rule is the one without an \
+         outcome). A removal that does not lower the leakage AUC is never taken, whatever it \
+         costs.",
+        super::utility::LOSS_FLOOR,
+        super::utility::LOSS_FLOOR
     )
 }
+
+/// Leakage AUC a removal must remove for the plan to weigh its utility
+/// cost: smaller drops are within the noise of a refit (the screening
+/// tolerance of drop-one, [`super::whole::SCREEN_TOLERANCE`]), and a free
+/// removal of noise would otherwise outrank a real proxy whose removal costs
+/// utility. When no removal clears it, the plan steps as without an outcome.
+const MIN_LEAKAGE_DROP: f64 = super::whole::SCREEN_TOLERANCE;
 
 /// Full-width checks at most, each followed by a new screen when it fails.
 const MAX_CHECKS: usize = 3;
@@ -109,6 +135,8 @@ struct Planner<'p, 'a, 'b> {
     /// Outcomes by the (sorted) feature set fitted.
     tried: HashMap<Vec<usize>, Outcome>,
     redundancy: HashMap<(usize, usize), f64>,
+    /// Outcome measures of every unremoved feature (with an outcome).
+    utility_now: Option<Evaluation>,
 }
 
 /// Greedy plan starting from the working set of the full attack; `first_step`
@@ -132,8 +160,19 @@ pub fn removal_plan(
         remaining: working.features,
         removed: Vec::new(),
         redundancy: HashMap::new(),
+        utility_now: plan
+            .utility
+            .and_then(|u| u.of(&all_features(features.len()))),
     };
     let mut result = Plan::default();
+    let mut frontier = planner.utility_now.as_ref().map(|utility| {
+        vec![FrontierPoint {
+            steps: 0,
+            removed: Vec::new(),
+            leakage: full.evaluation.interval(),
+            outcome: utility.interval(),
+        }]
+    });
     progress.stage(
         &format!("removal plan: {}", plan.target.attribute.name),
         features.len() as u64,
@@ -161,17 +200,42 @@ pub fn removal_plan(
         let Some(step) = planner.step(&mut result.groups) else {
             break;
         };
+        if let (Some(points), Some(utility)) = (frontier.as_mut(), &planner.utility_now) {
+            points.push(FrontierPoint {
+                steps: points.len(),
+                removed: planner.removed_names(),
+                leakage: planner.current.evaluation.interval(),
+                outcome: utility.interval(),
+            });
+        }
         result.steps.push(step);
         progress.advance(1);
     }
+    result.frontier = frontier.unwrap_or_default();
     result
+}
+
+/// Every feature index of a table with `n` features.
+fn all_features(n: usize) -> Vec<usize> {
+    (0..n).collect()
 }
 
 impl Planner<'_, '_, '_> {
     /// Every feature not removed, at full width.
     fn unremoved(&self) -> Vec<usize> {
-        let all: Vec<usize> = (0..self.plan.inputs.features.len()).collect();
-        without(&all, &self.removed)
+        without(
+            &all_features(self.plan.inputs.features.len()),
+            &self.removed,
+        )
+    }
+
+    /// Names of the features removed so far, in plan order.
+    fn removed_names(&self) -> Vec<String> {
+        let features = self.plan.inputs.features;
+        self.removed
+            .iter()
+            .map(|&i| features[i].name.clone())
+            .collect()
     }
 
     /// The attacker on every feature the plan has not removed.
@@ -298,8 +362,9 @@ impl Planner<'_, '_, '_> {
         attack(self.plan.inputs, &left, self.plan.target).map(|a| Outcome::of(&a))
     }
 
-    /// Weighs every candidate and group; takes the removal that lowers the
-    /// AUC most per feature removed, if any lowers it.
+    /// Weighs every candidate and group; takes, among the removals that
+    /// lower the AUC, the one that lowers it most per feature removed or,
+    /// with an outcome, per unit of outcome AUC lost ([`tradeoff`]).
     fn step(&mut self, groups_seen: &mut Vec<RedundancyGroup>) -> Option<RemovalStep> {
         let pool = self.pool();
         let groups = self.groups(&pool);
@@ -316,28 +381,42 @@ impl Planner<'_, '_, '_> {
         }
         self.record_groups(&groups, &moves, &outcomes, groups_seen);
         let before = self.current.auc();
-        let (best, outcome) = moves
+        let mut lowering: Vec<(&Vec<usize>, Outcome)> = moves
             .iter()
             .zip(outcomes)
             .filter_map(|(m, o)| Some((m, o?)))
             .filter(|(_, o)| o.auc() < before)
-            .max_by(|(ma, oa), (mb, ob)| {
-                let rate = |m: &Vec<usize>, o: &Outcome| (before - o.auc()) / m.len() as f64;
-                rate(ma, oa)
-                    .total_cmp(&rate(mb, ob))
-                    .then(mb.len().cmp(&ma.len()))
-                    .then(mb.cmp(ma))
-            })?;
+            .collect();
+        let clear = |o: &Outcome| before - o.auc() > MIN_LEAKAGE_DROP;
+        let weigh = self.utility_now.is_some() && lowering.iter().any(|(_, o)| clear(o));
+        if weigh {
+            lowering.retain(|(_, o)| clear(o));
+        }
+        let utilities = self.utilities_after(&lowering, weigh);
+        let ((best, outcome), utility) =
+            lowering
+                .into_iter()
+                .zip(utilities)
+                .max_by(|((ma, oa), ua), ((mb, ob), ub)| {
+                    self.rate(before, ma, oa, ua.as_ref())
+                        .total_cmp(&self.rate(before, mb, ob, ub.as_ref()))
+                        .then(mb.len().cmp(&ma.len()))
+                        .then(mb.cmp(ma))
+                })?;
         let best = best.clone();
         self.remaining.retain(|i| !best.contains(i));
         self.removed.extend(&best);
         self.exact = false;
         self.current = outcome;
+        if self.utility_now.is_some() {
+            self.utility_now = utility.or_else(|| self.plan.utility?.of(&self.unremoved()));
+        }
         let names: Vec<String> = best
             .iter()
             .map(|&i| self.plan.inputs.features[i].name.clone())
             .collect();
         let interval = self.current.evaluation.interval();
+        let outcome_interval = self.utility_now.as_ref().map(Evaluation::interval);
         Some(RemovalStep {
             remove: names.join(" + "),
             auc_after: interval.auc,
@@ -345,7 +424,48 @@ impl Planner<'_, '_, '_> {
             auc_high: interval.auc_high,
             features: names,
             auc_before: Some(before),
+            outcome_auc_after: outcome_interval.map(|i| i.auc),
+            outcome_auc_low: outcome_interval.map(|i| i.auc_low),
+            outcome_auc_high: outcome_interval.map(|i| i.auc_high),
         })
+    }
+
+    /// The outcome measures after each removal (every unremoved feature but
+    /// the removal's) when `weigh`ing utility; `None` each otherwise.
+    fn utilities_after(
+        &self,
+        removals: &[(&Vec<usize>, Outcome)],
+        weigh: bool,
+    ) -> Vec<Option<Evaluation>> {
+        match self.plan.utility {
+            Some(utility) if weigh => {
+                let unremoved = self.unremoved();
+                removals
+                    .par_iter()
+                    .map(|(m, _)| utility.of(&without(&unremoved, m)))
+                    .collect()
+            }
+            _ => vec![None; removals.len()],
+        }
+    }
+
+    /// What a removal is worth: with its outcome measures, leakage AUC
+    /// removed per unit of outcome AUC lost ([`tradeoff`]); otherwise
+    /// leakage AUC removed per feature.
+    fn rate(
+        &self,
+        before: f64,
+        removal: &[usize],
+        outcome: &Outcome,
+        utility: Option<&Evaluation>,
+    ) -> f64 {
+        let drop = before - outcome.auc();
+        match (&self.utility_now, utility) {
+            (Some(now), Some(after)) => {
+                tradeoff(drop, now.estimate.auc - after.estimate.auc, removal.len())
+            }
+            _ => drop / removal.len() as f64,
+        }
     }
 
     /// Reports each group the first time it is weighed, with what removing

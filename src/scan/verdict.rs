@@ -220,6 +220,9 @@ mod tests {
             plan_rule: String::new(),
             outcome: None,
             protected_auc_within_outcome: None,
+            frontier: Vec::new(),
+            recommended_within_tolerance: None,
+            outcome_refits: 0,
         }
     }
 

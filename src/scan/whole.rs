@@ -4,6 +4,7 @@
 use super::evaluate::{Evaluation, Target, compare, evaluate, roc};
 use super::joints::FoldJoints;
 use super::plan::{PlanInputs, removal_plan};
+use super::utility::{Utility, within_tolerance};
 use super::{Progress, ScanOptions};
 use crate::data::sample::stratified_sample;
 use crate::data::{EncodedColumn, ProtectedAttribute};
@@ -128,12 +129,14 @@ pub fn without(subset: &[usize], removed: &[usize]) -> Vec<usize> {
 }
 
 /// Whole-set AUC with interval, BER, drop-one ablation and removal plan.
-/// `flagged` are the features the single-feature scan flagged.
+/// `flagged` are the features the single-feature scan flagged; with an
+/// `outcome`, the plan weighs utility and traces its frontier.
 pub fn scan_whole_set(
     inputs: &AttackInputs<'_>,
     target: &Target<'_>,
     options: &ScanOptions,
     flagged: &[usize],
+    outcome: Option<&ProtectedAttribute>,
     progress: &dyn Progress,
 ) -> Option<WholeSet> {
     let features = inputs.features;
@@ -142,7 +145,7 @@ pub fn scan_whole_set(
     let full = attack(inputs, &all, target)?;
     progress.advance(1);
     let ablation = if options.ablation {
-        sampled_ablation(inputs, target, options, flagged, &full, progress)
+        sampled_ablation(inputs, target, options, flagged, outcome, &full, progress)
     } else {
         Ablation::default()
     };
@@ -160,6 +163,12 @@ pub fn scan_whole_set(
         drop_one: ablation.drop_one,
         removal_plan: ablation.plan.steps,
         target_reached: ablation.plan.reached,
+        recommended_within_tolerance: within_tolerance(
+            &ablation.plan.frontier,
+            options.max_utility_loss,
+        ),
+        frontier: ablation.plan.frontier,
+        outcome_refits: ablation.outcome_refits,
         outcome: None,
         protected_auc_within_outcome: None,
         ablation: options.ablation,
@@ -184,7 +193,7 @@ pub fn scan_whole_set(
         plan_check: ablation.plan.check,
         redundancy_groups: ablation.plan.groups,
         plan_rule: if options.ablation {
-            super::plan::plan_rule(options)
+            super::plan::plan_rule(options, outcome.is_some())
         } else {
             String::new()
         },
@@ -199,6 +208,7 @@ struct Ablation {
     screened_auc: Option<AucInterval>,
     plan: super::plan::Plan,
     refits: usize,
+    outcome_refits: usize,
     rows: Option<usize>,
 }
 
@@ -213,13 +223,24 @@ fn sampled_ablation(
     target: &Target<'_>,
     options: &ScanOptions,
     flagged: &[usize],
+    outcome: Option<&ProtectedAttribute>,
     full: &Attack,
     progress: &dyn Progress,
 ) -> Ablation {
     let attribute = target.attribute;
     if attribute.codes.len() <= options.ablation_rows {
-        let mut result = ablation(inputs, target, options, flagged, full, progress);
+        let utility = outcome.map(|o| Utility::new(inputs.features, o, options));
+        let mut result = ablation(
+            inputs,
+            target,
+            options,
+            flagged,
+            utility.as_ref(),
+            full,
+            progress,
+        );
         result.refits = inputs.fits() - 1;
+        result.outcome_refits = utility.map_or(0, |u| u.fits());
         return result;
     }
     let rows = ablation_sample(attribute, options);
@@ -234,6 +255,10 @@ fn sampled_ablation(
         &features,
         super::joints::nested_joints(&features, &sampled_target, options, progress),
     );
+    let sampled_outcome = outcome.map(|o| o.select_rows(&rows));
+    let utility = sampled_outcome
+        .as_ref()
+        .map(|o| Utility::new(&features, o, options));
     let all: Vec<usize> = (0..features.len()).collect();
     let mut result = match attack(&sampled_inputs, &all, &sampled_target) {
         Some(sampled_full) => ablation(
@@ -241,12 +266,14 @@ fn sampled_ablation(
             &sampled_target,
             options,
             flagged,
+            utility.as_ref(),
             &sampled_full,
             progress,
         ),
         None => Ablation::default(),
     };
     result.refits = sampled_inputs.fits();
+    result.outcome_refits = utility.map_or(0, |u| u.fits());
     result.rows = Some(rows.len());
     result
 }
@@ -361,6 +388,7 @@ fn ablation(
     target: &Target<'_>,
     options: &ScanOptions,
     flagged: &[usize],
+    utility: Option<&Utility<'_>>,
     full: &Attack,
     progress: &dyn Progress,
 ) -> Ablation {
@@ -425,6 +453,7 @@ fn ablation(
             target,
             options,
             flagged,
+            utility,
         },
         full,
         working,
@@ -437,6 +466,7 @@ fn ablation(
         screened_auc,
         plan,
         refits: 0,
+        outcome_refits: 0,
         rows: None,
     }
 }
