@@ -1119,8 +1119,55 @@ fn report_folder_is_written_once_and_kept() {
             .unwrap()
             .contains("not a legal determination")
     );
+    for document in ["report.md", "report.html"] {
+        let text = fs::read_to_string(out.join(document)).unwrap();
+        assert!(
+            text.contains("Selection and error rates by group"),
+            "{document}"
+        );
+    }
     let again = telltale(&args);
     assert_input_error(&again, &["report.json", "--force"]);
+}
+
+#[test]
+fn outputs_reports_in_every_format_carry_the_caution_and_withhold_small_groups() {
+    let dir = scratch("outputs-formats");
+    let path = write(&dir, "scored.csv", &scored_csv(|_, _| {}));
+    let out = dir.join("out");
+    let out_arg = out.display().to_string();
+    let mut args = vec![
+        "outputs",
+        path.as_str(),
+        "--decision",
+        "decision",
+        "--min-cell",
+        "25",
+        "--report",
+        &out_arg,
+    ];
+    args.extend(OUTPUTS_BASE);
+    let output = telltale(&args);
+    assert_eq!(output.status.code(), Some(0));
+    let terminal = String::from_utf8_lossy(&output.stdout).to_string();
+    let markdown = fs::read_to_string(out.join("report.md")).unwrap();
+    let html = fs::read_to_string(out.join("report.html")).unwrap();
+    // Group b has 20 rows, under --min-cell 25: its count, its 5 selected and
+    // its 25.0% selection rate appear in no rendering.
+    for text in [&terminal, &markdown, &html] {
+        assert!(text.contains("not a legal determination"), "{text}");
+        assert!(text.contains("<25") || text.contains("&lt;25"), "{text}");
+        assert!(!text.contains("25.0%"), "b's selection rate leaks: {text}");
+    }
+    assert!(markdown.contains(r"| b | \<25 | \<25 |"), "{markdown}");
+    assert!(!html.contains(r#"<td class="num">20</td>"#));
+    // Rates with interval bars and the four-fifths line; score distribution
+    // and calibration as lines by group.
+    assert_eq!(html.matches("chart-rates").count(), 1);
+    assert_eq!(html.matches("chart-lines").count(), 2);
+    assert!(html.contains("four-fifths of the highest rate: 60.0% (common practice)"));
+    // The gate section states the exit status the run returned.
+    assert!(terminal.contains("passes (exit 0)"), "{terminal}");
 }
 
 #[test]

@@ -3,14 +3,20 @@
 
 use super::Status;
 use super::data_args::{DataArgs, command_line};
-use super::output::write_one;
+use super::output::{write_documents, write_one};
 use super::scan::check_outputs;
 use crate::data::prepare::EncodeOptions;
 use crate::outputs::input::{ScoredSpec, Selection};
-use crate::outputs::{OutputsOptions, OutputsReport, OutputsThresholds, terminal};
+use crate::outputs::layout::outputs_page;
+use crate::outputs::{OutputsOptions, OutputsReport, OutputsThresholds};
 use crate::pipeline;
+use crate::report::html::HtmlRenderer;
+use crate::report::markdown::MarkdownRenderer;
+use crate::report::page::Backend;
+use crate::report::terminal::TerminalRenderer;
 use anyhow::{Context, Result, bail};
 use clap::{ArgGroup, Args};
+use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
 #[derive(Debug, Args)]
@@ -45,7 +51,7 @@ pub struct OutputsArgs {
     /// Fail (exit 1) when a TPR or FPR gap's lower bound reaches this.
     #[arg(long, value_name = "GAP")]
     pub odds_gap: Option<f64>,
-    /// Write report.json into this folder.
+    /// Write report.json, report.md and report.html into this folder.
     #[arg(long, value_name = "DIR")]
     pub report: Option<PathBuf>,
     /// Write the JSON report to this file (`-` for standard output).
@@ -145,7 +151,8 @@ pub fn run(args: &OutputsArgs) -> Result<Status> {
     Ok(Status::ThresholdExceeded)
 }
 
-/// Prints the summary (unless the JSON goes to standard output) and writes the requested files.
+/// Prints the summary (unless the JSON goes to standard output) and writes
+/// the requested files; every format is rendered from the same page.
 fn emit(
     report: &OutputsReport,
     dir: Option<&Path>,
@@ -154,13 +161,21 @@ fn emit(
 ) -> Result<()> {
     let text = serde_json::to_string_pretty(report).context("cannot serialise the report")? + "\n";
     let json_to_stdout = json.is_some_and(|p| p.as_os_str() == "-");
+    let page = outputs_page(report);
     if !json_to_stdout {
-        print!("{}", terminal::render(report));
+        let colour = std::io::stdout().is_terminal();
+        print!("{}", TerminalRenderer { colour }.render_page(&page));
     }
     if let Some(dir) = dir {
-        std::fs::create_dir_all(dir)
-            .with_context(|| format!("{}: cannot create folder", dir.display()))?;
-        write_one(&dir.join("report.json"), &text, force)?;
+        let documents = [
+            ("report.json", text.clone()),
+            (
+                MarkdownRenderer::FILE_NAME,
+                MarkdownRenderer.render_page(&page),
+            ),
+            (HtmlRenderer::FILE_NAME, HtmlRenderer.render_page(&page)),
+        ];
+        write_documents(dir, &documents, force)?;
         if !json_to_stdout {
             println!("report written to {}", dir.display());
         }

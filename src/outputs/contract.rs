@@ -94,6 +94,9 @@ pub struct OutputsResult {
     pub standardized_mean_difference: Option<MeanDifferenceResult>,
     pub equalized_odds: Option<EqualizedOdds>,
     pub calibration: Vec<CalibrationBand>,
+    /// The score's distribution by group: each class's share of rows per
+    /// pooled-score band (the calibration table's bands).
+    pub score_distribution: Vec<DistributionBand>,
     pub thin_segments: Vec<ThinSegment>,
     /// Which features carry the attribute into the score (with `--features`).
     pub carriers: Vec<Carrier>,
@@ -205,6 +208,23 @@ pub struct CalibrationCell {
     pub mean_score: Option<f64>,
     /// Observed share with outcome 1, with its exact interval.
     pub outcome_rate: Option<Rate>,
+}
+
+/// One pooled-score band of the score's distribution by group.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct DistributionBand {
+    pub score_low: f64,
+    pub score_high: f64,
+    pub groups: Vec<BandShare>,
+}
+
+/// One class's rows in a band; `null` below `min_cell` rows (in the band or the class).
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct BandShare {
+    pub label: String,
+    pub count: Option<u64>,
+    /// `count` over the class's rows.
+    pub share: Option<f64>,
 }
 
 /// A segment whose event count is too small for its rate to be read as a

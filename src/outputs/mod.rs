@@ -7,9 +7,9 @@
 pub mod bands;
 pub mod contract;
 pub mod input;
+pub mod layout;
 pub mod proxy;
 pub mod rates;
-pub mod terminal;
 
 pub use contract::*;
 
@@ -17,7 +17,7 @@ use crate::data::ProtectedAttribute;
 use crate::pipeline::file_dataset;
 use crate::report::format::percent;
 use crate::report::{DatasetInfo, SCHEMA_VERSION, ToolInfo};
-use bands::{SegmentCount, calibration, thin_segments};
+use bands::{SegmentCount, calibration, score_distribution, thin_segments};
 use input::{Levels, ScoredData, ScoredSpec, Selection};
 use rates::{
     GroupCounts, count_groups, equalized_odds, group_rates, impact_ratio, mean_difference,
@@ -219,6 +219,13 @@ fn evaluate(
                 )
             })
             .unwrap_or_default(),
+        score_distribution: score_distribution(
+            &data.score,
+            classes,
+            labels,
+            options.bands,
+            min_cell,
+        ),
         thin_segments: thin(data, attribute, &counts, options),
         carriers: proxy::carriers(
             &data.score,

@@ -127,6 +127,8 @@ fn svg_of(chart: &Chart) -> String {
             whole,
             target_auc,
         } => svg::removal_steps(title, whole, *target_auc),
+        Chart::RatePanels { title, panels } => svg::groups::rate_panels(title, panels),
+        Chart::GroupLines { title, axes, lines } => svg::groups::group_lines(title, axes, lines),
     }
 }
 

@@ -9,6 +9,8 @@ use super::{FeatureResult, Flag, PairResult, Thresholds, WholeSet};
 use std::collections::BTreeMap;
 use std::fmt::Write;
 
+pub mod groups;
+
 /// Width of every chart in user units (the page scales it to its column).
 const WIDTH: f64 = 680.0;
 /// At most this many feature bars; the rest are listed in the table only.
