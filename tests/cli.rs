@@ -1171,6 +1171,40 @@ fn outputs_reports_in_every_format_carry_the_caution_and_withhold_small_groups()
 }
 
 #[test]
+fn outputs_policy_thresholds_decide_the_exit_status_and_the_report_agrees() {
+    let dir = scratch("outputs-policy");
+    let path = write(&dir, "scored.csv", &scored_csv(|_, _| {}));
+    // Ratio 1/3: below four-fifths, not below 0.3. TPR: a 100%, b 0% (every
+    // odd row of b is unselected), so a gap limit of 0.1 is exceeded.
+    let lenient = write(&dir, "lenient.toml", b"[outputs]\nimpact_ratio_min = 0.3\n");
+    let strict = write(
+        &dir,
+        "strict.toml",
+        b"[outputs]\nimpact_ratio_min = 0.3\nodds_gap_low = 0.1\n",
+    );
+    let (output, json) = run_outputs_json(&path, &["--decision", "decision", "--policy", &lenient]);
+    assert_eq!(output.status.code(), Some(0));
+    assert_eq!(json["failing"], Value::Array(vec![]));
+    assert_eq!(json["policy"]["file"], "lenient.toml");
+    assert_eq!(json["settings"]["thresholds"]["impact_ratio"], 0.3);
+    let (output, json) = run_outputs_json(&path, &["--decision", "decision", "--policy", &strict]);
+    assert_eq!(output.status.code(), Some(1));
+    let failing: Vec<&str> = json["failing"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f.as_str().unwrap())
+        .collect();
+    assert_eq!(failing.len(), 1, "{failing:?}");
+    assert!(failing[0].contains("TPR gap lower bound"), "{failing:?}");
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(stderr.contains(failing[0]), "{stderr}");
+    let bad = write(&dir, "bad.toml", b"[outputs]\nimpact_ratio_min = 4\n");
+    let (output, _) = run_outputs_json(&path, &["--decision", "decision", "--policy", &bad]);
+    assert_input_error(&output, &["bad.toml", "line 2", "impact_ratio_min"]);
+}
+
+#[test]
 fn demo_scored_file_shows_the_planted_branch_penalty() {
     // The demo's model subtracts 0.8 from the log-odds of repayment on the 12 branches that
     // 90% of Valic and 8% of Osmeric applicants use (src/data/demo.rs); repayment itself

@@ -8,12 +8,13 @@ use super::scan::check_outputs;
 use crate::data::prepare::EncodeOptions;
 use crate::outputs::input::{ScoredSpec, Selection};
 use crate::outputs::layout::outputs_page;
-use crate::outputs::{OutputsOptions, OutputsReport, OutputsThresholds};
+use crate::outputs::{AppliedPolicy, OutputsOptions, OutputsReport, OutputsThresholds};
 use crate::pipeline;
 use crate::report::html::HtmlRenderer;
 use crate::report::markdown::MarkdownRenderer;
 use crate::report::page::Backend;
 use crate::report::terminal::TerminalRenderer;
+use crate::review::policy::Policy;
 use anyhow::{Context, Result, bail};
 use clap::{ArgGroup, Args};
 use std::io::IsTerminal;
@@ -51,6 +52,9 @@ pub struct OutputsArgs {
     /// Fail (exit 1) when a TPR or FPR gap's lower bound reaches this.
     #[arg(long, value_name = "GAP")]
     pub odds_gap: Option<f64>,
+    /// Review policy (TOML): its `[outputs]` thresholds replace the three above.
+    #[arg(long, value_name = "FILE")]
+    pub policy: Option<PathBuf>,
     /// Write report.json, report.md and report.html into this folder.
     #[arg(long, value_name = "DIR")]
     pub report: Option<PathBuf>,
@@ -95,14 +99,22 @@ impl OutputsArgs {
         if !(2..=100).contains(&self.bands) {
             bail!("--bands must be between 2 and 100, got {}", self.bands);
         }
+        let flags = OutputsThresholds {
+            proxy_auc_low: self.proxy_auc,
+            impact_ratio: self.impact_ratio,
+            odds_gap_low: self.odds_gap,
+        };
+        let policy = self.policy.as_deref().map(Policy::load).transpose()?;
         Ok(OutputsOptions {
             min_cell: self.data.min_cell,
             bands: self.bands,
-            thresholds: OutputsThresholds {
-                proxy_auc_low: self.proxy_auc,
-                impact_ratio: self.impact_ratio,
-                odds_gap_low: self.odds_gap,
-            },
+            thresholds: policy
+                .as_ref()
+                .map_or(flags, |p| p.outputs.applied_to(flags)),
+            policy: policy.map(|p| AppliedPolicy {
+                file: p.file,
+                sha256: p.sha256,
+            }),
             ..OutputsOptions::default()
         })
     }

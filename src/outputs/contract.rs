@@ -19,7 +19,18 @@ pub struct OutputsReport {
     pub results: Vec<OutputsResult>,
     /// Statements about what was not computed and why, and rows dropped.
     pub notes: Vec<String>,
+    /// The policy file whose `[outputs]` thresholds were applied, if any.
+    pub policy: Option<AppliedPolicy>,
+    /// Every threshold exceeded, one line each; non-empty exactly when the exit status is 1.
+    pub failing: Vec<String>,
     pub caution: String,
+}
+
+/// A policy file named by its exact bytes.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct AppliedPolicy {
+    pub file: String,
+    pub sha256: String,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]

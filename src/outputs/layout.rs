@@ -6,7 +6,6 @@ use super::contract::{
     CalibrationBand, Carrier, DistributionBand, GroupRates, ImpactRatio, OutputsReport,
     OutputsResult, Rate, RateGap,
 };
-use super::gate_failures;
 use crate::report::format::{NOT_COMPUTED, auc_interval, percent, signed, suppressed};
 use crate::report::layout::{CAUTION_LABEL, names_or_none};
 use crate::report::page::{
@@ -656,9 +655,10 @@ fn carrier_row(carrier: &Carrier) -> Row {
     ])
 }
 
-/// The thresholds and what exceeds them: the same list decides the exit status.
+/// The thresholds and what exceeds them: the report's `failing` list, which
+/// also decides the exit status.
 fn gate_section(report: &OutputsReport) -> Section<'static> {
-    let failures = gate_failures(report);
+    let failures = &report.failing;
     let verdict = if failures.is_empty() {
         Cell::styled("passes (exit 0)", CellStyle::Toned(Tone::Calm))
     } else {
@@ -667,18 +667,22 @@ fn gate_section(report: &OutputsReport) -> Section<'static> {
             CellStyle::Toned(Tone::Alarm),
         )
     };
-    let mut blocks = vec![Block::KeyValues(KeyValues {
-        labels: None,
-        rows: vec![
-            (
-                "thresholds".to_owned(),
-                Cell::plain(thresholds_text(&report.settings.thresholds)),
-            ),
-            ("result".to_owned(), verdict),
-        ],
-    })];
+    let mut rows: Vec<(String, Cell)> = report
+        .policy
+        .iter()
+        .map(|p| {
+            let text = format!("{} (SHA-256 {})", p.file, p.sha256);
+            ("policy".to_owned(), Cell::plain(text))
+        })
+        .collect();
+    rows.push((
+        "thresholds".to_owned(),
+        Cell::plain(thresholds_text(&report.settings.thresholds)),
+    ));
+    rows.push(("result".to_owned(), verdict));
+    let mut blocks = vec![Block::KeyValues(KeyValues { labels: None, rows })];
     if !failures.is_empty() {
-        blocks.push(Block::List(failures));
+        blocks.push(Block::List(failures.clone()));
     }
     Section::new("Gate", blocks)
 }
