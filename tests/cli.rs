@@ -1058,6 +1058,32 @@ fn missing_scores_are_dropped_and_counted() {
 }
 
 #[test]
+fn outputs_reads_missing_values_as_scan_does() {
+    let dir = scratch("outputs-na-values");
+    // Every tenth score is `NA` (a default missing token) or `-99` (a sentinel).
+    let path = write(
+        &dir,
+        "scored.csv",
+        &scored_csv(|i, f| match i % 10 {
+            1 => f[1] = "NA".into(),
+            2 => f[1] = "-99".into(),
+            _ => {}
+        }),
+    );
+    let (_, json) = run_outputs_json(&path, &["--decision", "decision"]);
+    assert_eq!(json["dataset"]["rows_used"], 54, "NA is missing by default");
+    let (_, json) = run_outputs_json(&path, &["--decision", "decision", "--na-values", "NA,-99"]);
+    assert_eq!(json["dataset"]["rows_used"], 48);
+    assert!(
+        json["notes"]
+            .to_string()
+            .contains("12 rows dropped: score `score` missing")
+    );
+    let (output, _) = run_outputs_json(&path, &["--decision", "decision", "--no-na-values"]);
+    assert_input_error(&output, &["scored.csv", "score", "`NA`"]);
+}
+
+#[test]
 fn thin_segment_states_how_high_a_zero_rate_may_be() {
     let dir = scratch("outputs-thin");
     // Greyholm: 12 rows, none selected.
