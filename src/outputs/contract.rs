@@ -155,7 +155,8 @@ pub struct GroupRates {
 pub struct ImpactRatio {
     /// Lowest selection rate over the highest, among groups with at least `min_cell` rows.
     pub ratio: Option<f64>,
-    /// Katz log interval (Katz et al. 1978); `null` when a rate is 0.
+    /// Katz log interval (Katz et al. 1978), Bonferroni-adjusted over the
+    /// pairs of groups when there are more than two; `null` when a rate is 0.
     pub ratio_low: Option<f64>,
     pub ratio_high: Option<f64>,
     pub lowest: String,
@@ -185,7 +186,8 @@ pub struct MeanDifferenceResult {
     pub smd_high: f64,
 }
 
-/// The largest difference of a rate between groups, with its interval.
+/// The largest difference of a rate between groups, with its Newcombe
+/// interval (Bonferroni-adjusted over the pairs of groups when there are more than two).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct RateGap {
     pub difference: f64,
