@@ -1113,21 +1113,23 @@ fn thin_segment_states_how_high_a_zero_rate_may_be() {
     );
 }
 
-#[test]
-fn report_folder_is_written_once_and_kept() {
-    let dir = scratch("outputs-folder");
+/// The 60-row scored file in a fresh folder `name`, and the arguments of an
+/// `outputs` run with `selection` that writes its report into `name/out`.
+fn outputs_report_args(name: &str, selection: &[&str]) -> (std::path::PathBuf, Vec<String>) {
+    let dir = scratch(name);
     let path = write(&dir, "scored.csv", &scored_csv(|_, _| {}));
     let out = dir.join("out");
-    let out_arg = out.display().to_string();
-    let mut args = vec![
-        "outputs",
-        path.as_str(),
-        "--selection-rate",
-        "0.5",
-        "--report",
-        &out_arg,
-    ];
-    args.extend(OUTPUTS_BASE);
+    let mut args = vec!["outputs".to_string(), path];
+    args.extend(selection.iter().map(|a| (*a).to_string()));
+    args.extend(["--report".to_string(), out.display().to_string()]);
+    args.extend(OUTPUTS_BASE.iter().map(|a| (*a).to_string()));
+    (out, args)
+}
+
+#[test]
+fn report_folder_is_written_once_and_kept() {
+    let (out, args) = outputs_report_args("outputs-folder", &["--selection-rate", "0.5"]);
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
     let first = telltale(&args);
     assert_ne!(
         first.status.code(),
@@ -1158,21 +1160,11 @@ fn report_folder_is_written_once_and_kept() {
 
 #[test]
 fn outputs_reports_in_every_format_carry_the_caution_and_withhold_small_groups() {
-    let dir = scratch("outputs-formats");
-    let path = write(&dir, "scored.csv", &scored_csv(|_, _| {}));
-    let out = dir.join("out");
-    let out_arg = out.display().to_string();
-    let mut args = vec![
-        "outputs",
-        path.as_str(),
-        "--decision",
-        "decision",
-        "--min-cell",
-        "25",
-        "--report",
-        &out_arg,
-    ];
-    args.extend(OUTPUTS_BASE);
+    let (out, args) = outputs_report_args(
+        "outputs-formats",
+        &["--decision", "decision", "--min-cell", "25"],
+    );
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
     let output = telltale(&args);
     assert_eq!(output.status.code(), Some(0));
     let terminal = String::from_utf8_lossy(&output.stdout).to_string();

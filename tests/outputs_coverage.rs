@@ -78,8 +78,27 @@ fn clopper_pearson_rates_cover_at_least_nominally() {
     assert!(failures.is_empty(), "{failures:#?}");
 }
 
-/// Rates of groups: two that differ, and four that are equal (the extremes
-/// are then picked from noise alone).
+/// Coverage of an interval of the lowest and highest group for each design
+/// (a label and the groups' true rates) and group size; `covers` says
+/// whether the interval from the drawn tallies holds the named groups' truth.
+fn extreme_pair_coverage(
+    what: &str,
+    designs: &[(&str, &[f64])],
+    seed: u64,
+    covers: fn(&[Tally], &[f64]) -> Option<bool>,
+) {
+    let mut failures = Vec::new();
+    for (label, rates) in designs {
+        for n in SIZES {
+            let value = coverage(seed + n, |rng| covers(&tallies(rng, n, rates), rates));
+            check(&format!("{what}, {label}, n = {n}"), value, &mut failures);
+        }
+    }
+    assert!(failures.is_empty(), "{failures:#?}");
+}
+
+/// Selection rates of groups: two that differ, and four that are equal (the
+/// extremes are then picked from noise alone).
 const IMPACT_DESIGNS: [(&str, &[f64]); 2] = [
     ("2 groups, rates 0.50 and 0.35", &[0.5, 0.35]),
     ("4 equal groups, rate 0.40", &[0.4, 0.4, 0.4, 0.4]),
@@ -87,26 +106,15 @@ const IMPACT_DESIGNS: [(&str, &[f64]); 2] = [
 
 #[test]
 fn adverse_impact_ratio_interval_covers_the_named_groups_ratio() {
-    let mut failures = Vec::new();
-    for (label, rates) in IMPACT_DESIGNS {
-        for n in SIZES {
-            let value = coverage(23 + n, |rng| {
-                let impact = adverse_impact(&tallies(rng, n, rates), LEVEL)?;
-                let ci = impact.interval?;
-                let truth = rates[impact.lowest] / rates[impact.highest];
-                Some(ci.low <= truth && truth <= ci.high)
-            });
-            check(
-                &format!("impact ratio, {label}, n = {n}"),
-                value,
-                &mut failures,
-            );
-        }
-    }
-    assert!(failures.is_empty(), "{failures:#?}");
+    extreme_pair_coverage("impact ratio", &IMPACT_DESIGNS, 23, |tallies, rates| {
+        let impact = adverse_impact(tallies, LEVEL)?;
+        let ci = impact.interval?;
+        let truth = rates[impact.lowest] / rates[impact.highest];
+        Some(ci.low <= truth && truth <= ci.high)
+    });
 }
 
-/// True positive rates of groups, as above.
+/// True positive rates of groups (n is then the positives per group).
 const GAP_DESIGNS: [(&str, &[f64]); 3] = [
     ("2 groups, TPR 0.80 and 0.60", &[0.8, 0.6]),
     ("2 equal groups, TPR 0.70", &[0.7, 0.7]),
@@ -115,22 +123,11 @@ const GAP_DESIGNS: [(&str, &[f64]); 3] = [
 
 #[test]
 fn equalized_odds_gap_interval_covers_the_named_groups_difference() {
-    let mut failures = Vec::new();
-    for (label, rates) in GAP_DESIGNS {
-        for n in SIZES {
-            let value = coverage(37 + n, |rng| {
-                let gap = largest_gap(&tallies(rng, n, rates), LEVEL)?;
-                let truth = rates[gap.highest] - rates[gap.lowest];
-                Some(gap.interval.low <= truth && truth <= gap.interval.high)
-            });
-            check(
-                &format!("gap, {label}, n = {n} positives"),
-                value,
-                &mut failures,
-            );
-        }
-    }
-    assert!(failures.is_empty(), "{failures:#?}");
+    extreme_pair_coverage("gap", &GAP_DESIGNS, 37, |tallies, rates| {
+        let gap = largest_gap(tallies, LEVEL)?;
+        let truth = rates[gap.highest] - rates[gap.lowest];
+        Some(gap.interval.low <= truth && truth <= gap.interval.high)
+    });
 }
 
 /// AUC of N(δ, 1) against N(0, 1) is Φ(δ/√2) (the binormal model; Hanley &

@@ -373,18 +373,20 @@ fn rate_point(
     })
 }
 
+/// A group's rate and its interval's ends, each `None` when not shown.
+type RateTriple = (Option<f64>, Option<f64>, Option<f64>);
+
 fn rates_chart(result: &OutputsResult, has_outcome: bool) -> Block<'static> {
-    let points =
-        |pick: fn(&GroupRates) -> (Option<f64>, Option<f64>, Option<f64>)| -> Vec<IntervalPoint> {
-            result
-                .groups
-                .iter()
-                .filter_map(|g| {
-                    let (v, l, h) = pick(g);
-                    rate_point(&g.label, v, l, h)
-                })
-                .collect()
-        };
+    let points = |pick: fn(&GroupRates) -> RateTriple| -> Vec<IntervalPoint> {
+        result
+            .groups
+            .iter()
+            .filter_map(|g| {
+                let (v, l, h) = pick(g);
+                rate_point(&g.label, v, l, h)
+            })
+            .collect()
+    };
     let selection = points(|g| {
         (
             g.selection_rate,

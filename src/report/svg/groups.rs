@@ -230,38 +230,35 @@ pub fn group_lines(title: &str, axes: &LineAxes, lines: &[GroupLine]) -> String 
             1.0,
             true,
         );
-        canvas.line(
-            (legend_x, legend_y - 4.0),
-            (legend_x + 22.0, legend_y - 4.0),
-            MUTED,
-            1.0,
-            true,
-        );
-        canvas.text(
-            (legend_x + 28.0, legend_y),
+        legend_entry(
+            &mut canvas,
+            (legend_x, legend_y),
+            (MUTED, 1.0, true),
             "y = x",
-            Font::new(11.0, "start"),
         );
         legend_y += 20.0;
     }
     for (index, line) in lines.iter().enumerate() {
         let colour = SERIES[index % SERIES.len()];
         draw_line(&mut canvas, (&x, &y), line, colour);
-        canvas.line(
-            (legend_x, legend_y - 4.0),
-            (legend_x + 22.0, legend_y - 4.0),
-            colour,
-            2.0,
-            false,
-        );
-        canvas.text(
-            (legend_x + 28.0, legend_y),
-            &truncate(&line.label, 24),
-            Font::new(11.0, "start"),
+        let label = truncate(&line.label, 24);
+        legend_entry(
+            &mut canvas,
+            (legend_x, legend_y),
+            (colour, 2.0, false),
+            &label,
         );
         legend_y += 20.0;
     }
     canvas.finish()
+}
+
+/// A legend row at `at`: a line sample drawn with `(colour, width, dashed)`, then `label`.
+fn legend_entry(canvas: &mut Canvas, at: (f64, f64), stroke: (&str, f64, bool), label: &str) {
+    let (x, y) = at;
+    let (colour, width, dashed) = stroke;
+    canvas.line((x, y - 4.0), (x + 22.0, y - 4.0), colour, width, dashed);
+    canvas.text((x + 28.0, y), label, Font::new(11.0, "start"));
 }
 
 /// About five ticks inside `range` at a round step (1, 2, 2.5 or 5 times a power of ten).
