@@ -319,6 +319,6 @@ pub fn evaluate_outputs(
 ) -> Result<OutputsEvaluation, InputError> {
     let data = read_scored(spec)?;
     let report = crate::outputs::build_report(&data, spec, options, command);
-    let failures = crate::outputs::gate_failures(&report);
+    let failures = report.failing.clone();
     Ok(OutputsEvaluation { report, failures })
 }

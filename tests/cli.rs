@@ -1072,6 +1072,32 @@ fn missing_scores_are_dropped_and_counted() {
 }
 
 #[test]
+fn outputs_reads_missing_values_as_scan_does() {
+    let dir = scratch("outputs-na-values");
+    // Every tenth score is `NA` (a default missing token) or `-99` (a sentinel).
+    let path = write(
+        &dir,
+        "scored.csv",
+        &scored_csv(|i, f| match i % 10 {
+            1 => f[1] = "NA".into(),
+            2 => f[1] = "-99".into(),
+            _ => {}
+        }),
+    );
+    let (_, json) = run_outputs_json(&path, &["--decision", "decision"]);
+    assert_eq!(json["dataset"]["rows_used"], 54, "NA is missing by default");
+    let (_, json) = run_outputs_json(&path, &["--decision", "decision", "--na-values", "NA,-99"]);
+    assert_eq!(json["dataset"]["rows_used"], 48);
+    assert!(
+        json["notes"]
+            .to_string()
+            .contains("12 rows dropped: score `score` missing")
+    );
+    let (output, _) = run_outputs_json(&path, &["--decision", "decision", "--no-na-values"]);
+    assert_input_error(&output, &["scored.csv", "score", "`NA`"]);
+}
+
+#[test]
 fn thin_segment_states_how_high_a_zero_rate_may_be() {
     let dir = scratch("outputs-thin");
     // Greyholm: 12 rows, none selected.
@@ -1101,21 +1127,23 @@ fn thin_segment_states_how_high_a_zero_rate_may_be() {
     );
 }
 
-#[test]
-fn report_folder_is_written_once_and_kept() {
-    let dir = scratch("outputs-folder");
+/// The 60-row scored file in a fresh folder `name`, and the arguments of an
+/// `outputs` run with `selection` that writes its report into `name/out`.
+fn outputs_report_args(name: &str, selection: &[&str]) -> (std::path::PathBuf, Vec<String>) {
+    let dir = scratch(name);
     let path = write(&dir, "scored.csv", &scored_csv(|_, _| {}));
     let out = dir.join("out");
-    let out_arg = out.display().to_string();
-    let mut args = vec![
-        "outputs",
-        path.as_str(),
-        "--selection-rate",
-        "0.5",
-        "--report",
-        &out_arg,
-    ];
-    args.extend(OUTPUTS_BASE);
+    let mut args = vec!["outputs".to_string(), path];
+    args.extend(selection.iter().map(|a| (*a).to_string()));
+    args.extend(["--report".to_string(), out.display().to_string()]);
+    args.extend(OUTPUTS_BASE.iter().map(|a| (*a).to_string()));
+    (out, args)
+}
+
+#[test]
+fn report_folder_is_written_once_and_kept() {
+    let (out, args) = outputs_report_args("outputs-folder", &["--selection-rate", "0.5"]);
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
     let first = telltale(&args);
     assert_ne!(
         first.status.code(),
@@ -1133,8 +1161,79 @@ fn report_folder_is_written_once_and_kept() {
             .unwrap()
             .contains("not a legal determination")
     );
+    for document in ["report.md", "report.html"] {
+        let text = fs::read_to_string(out.join(document)).unwrap();
+        assert!(
+            text.contains("Selection and error rates by group"),
+            "{document}"
+        );
+    }
     let again = telltale(&args);
     assert_input_error(&again, &["report.json", "--force"]);
+}
+
+#[test]
+fn outputs_reports_in_every_format_carry_the_caution_and_withhold_small_groups() {
+    let (out, args) = outputs_report_args(
+        "outputs-formats",
+        &["--decision", "decision", "--min-cell", "25"],
+    );
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
+    let output = telltale(&args);
+    assert_eq!(output.status.code(), Some(0));
+    let terminal = String::from_utf8_lossy(&output.stdout).to_string();
+    let markdown = fs::read_to_string(out.join("report.md")).unwrap();
+    let html = fs::read_to_string(out.join("report.html")).unwrap();
+    // Group b has 20 rows, under --min-cell 25: its count, its 5 selected and
+    // its 25.0% selection rate appear in no rendering.
+    for text in [&terminal, &markdown, &html] {
+        assert!(text.contains("not a legal determination"), "{text}");
+        assert!(text.contains("<25") || text.contains("&lt;25"), "{text}");
+        assert!(!text.contains("25.0%"), "b's selection rate leaks: {text}");
+    }
+    assert!(markdown.contains(r"| b | \<25 | \<25 |"), "{markdown}");
+    assert!(!html.contains(r#"<td class="num">20</td>"#));
+    // Rates with interval bars and the four-fifths line; score distribution
+    // and calibration as lines by group.
+    assert_eq!(html.matches("chart-rates").count(), 1);
+    assert_eq!(html.matches("chart-lines").count(), 2);
+    assert!(html.contains("four-fifths of the highest rate: 60.0% (common practice)"));
+    // The gate section states the exit status the run returned.
+    assert!(terminal.contains("passes (exit 0)"), "{terminal}");
+}
+
+#[test]
+fn outputs_policy_thresholds_decide_the_exit_status_and_the_report_agrees() {
+    let dir = scratch("outputs-policy");
+    let path = write(&dir, "scored.csv", &scored_csv(|_, _| {}));
+    // Ratio 1/3: below four-fifths, not below 0.3. TPR: a 100%, b 0% (every
+    // odd row of b is unselected), so a gap limit of 0.1 is exceeded.
+    let lenient = write(&dir, "lenient.toml", b"[outputs]\nimpact_ratio_min = 0.3\n");
+    let strict = write(
+        &dir,
+        "strict.toml",
+        b"[outputs]\nimpact_ratio_min = 0.3\nodds_gap_low = 0.1\n",
+    );
+    let (output, json) = run_outputs_json(&path, &["--decision", "decision", "--policy", &lenient]);
+    assert_eq!(output.status.code(), Some(0));
+    assert_eq!(json["failing"], Value::Array(vec![]));
+    assert_eq!(json["policy"]["file"], "lenient.toml");
+    assert_eq!(json["settings"]["thresholds"]["impact_ratio"], 0.3);
+    let (output, json) = run_outputs_json(&path, &["--decision", "decision", "--policy", &strict]);
+    assert_eq!(output.status.code(), Some(1));
+    let failing: Vec<&str> = json["failing"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f.as_str().unwrap())
+        .collect();
+    assert_eq!(failing.len(), 1, "{failing:?}");
+    assert!(failing[0].contains("TPR gap lower bound"), "{failing:?}");
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(stderr.contains(failing[0]), "{stderr}");
+    let bad = write(&dir, "bad.toml", b"[outputs]\nimpact_ratio_min = 4\n");
+    let (output, _) = run_outputs_json(&path, &["--decision", "decision", "--policy", &bad]);
+    assert_input_error(&output, &["bad.toml", "line 2", "impact_ratio_min"]);
 }
 
 #[test]

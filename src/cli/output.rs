@@ -13,9 +13,19 @@ pub fn write_report_dir(
     renderers: &[&dyn Renderer],
     force: bool,
 ) -> Result<()> {
-    let existing: Vec<String> = renderers
+    let documents: Vec<(&str, String)> = renderers
         .iter()
-        .map(|r| dir.join(r.file_name()))
+        .map(|r| (r.file_name(), r.render(report)))
+        .collect();
+    write_documents(dir, &documents, force)
+}
+
+/// Writes `(file name, text)` documents into `dir`, refusing to replace
+/// existing ones unless `force`: nothing is written when one is already there.
+pub fn write_documents(dir: &Path, documents: &[(&str, String)], force: bool) -> Result<()> {
+    let existing: Vec<String> = documents
+        .iter()
+        .map(|(name, _)| dir.join(name))
         .filter(|p| p.exists())
         .map(|p| p.display().to_string())
         .collect();
@@ -27,10 +37,9 @@ pub fn write_report_dir(
         );
     }
     fs::create_dir_all(dir).with_context(|| format!("{}: cannot create folder", dir.display()))?;
-    for renderer in renderers {
-        let path = dir.join(renderer.file_name());
-        fs::write(&path, renderer.render(report))
-            .with_context(|| format!("{}: cannot write", path.display()))?;
+    for (name, text) in documents {
+        let path = dir.join(name);
+        fs::write(&path, text).with_context(|| format!("{}: cannot write", path.display()))?;
     }
     Ok(())
 }

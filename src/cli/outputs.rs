@@ -3,15 +3,21 @@
 
 use super::Status;
 use super::data_args::{DataArgs, command_line};
-use super::output::write_one;
+use super::output::{write_documents, write_one};
 use super::scan::check_outputs;
 use anyhow::{Context, Result, bail};
 use clap::{ArgGroup, Args};
+use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use telltale::data::prepare::EncodeOptions;
 use telltale::outputs::input::{ScoredSpec, Selection};
-use telltale::outputs::{OutputsOptions, OutputsReport, OutputsThresholds, terminal};
+use telltale::outputs::{AppliedPolicy, OutputsOptions, OutputsReport, OutputsThresholds};
 use telltale::pipeline;
+use telltale::report::html::HtmlRenderer;
+use telltale::report::markdown::MarkdownRenderer;
+use telltale::report::page::Backend;
+use telltale::report::terminal::TerminalRenderer;
+use telltale::review::policy::Policy;
 
 #[derive(Debug, Args)]
 #[command(group(ArgGroup::new("selection").required(true).args(["decision", "threshold", "selection_rate"])))]
@@ -45,7 +51,10 @@ pub struct OutputsArgs {
     /// Fail (exit 1) when a TPR or FPR gap's lower bound reaches this.
     #[arg(long, value_name = "GAP")]
     pub odds_gap: Option<f64>,
-    /// Write report.json into this folder.
+    /// Review policy (TOML): its `[outputs]` thresholds replace the three above.
+    #[arg(long, value_name = "FILE")]
+    pub policy: Option<PathBuf>,
+    /// Write report.json, report.md and report.html into this folder.
     #[arg(long, value_name = "DIR")]
     pub report: Option<PathBuf>,
     /// Write the JSON report to this file (`-` for standard output).
@@ -89,14 +98,22 @@ impl OutputsArgs {
         if !(2..=100).contains(&self.bands) {
             bail!("--bands must be between 2 and 100, got {}", self.bands);
         }
+        let flags = OutputsThresholds {
+            proxy_auc_low: self.proxy_auc,
+            impact_ratio: self.impact_ratio,
+            odds_gap_low: self.odds_gap,
+        };
+        let policy = self.policy.as_deref().map(Policy::load).transpose()?;
         Ok(OutputsOptions {
             min_cell: self.data.min_cell,
             bands: self.bands,
-            thresholds: OutputsThresholds {
-                proxy_auc_low: self.proxy_auc,
-                impact_ratio: self.impact_ratio,
-                odds_gap_low: self.odds_gap,
-            },
+            thresholds: policy
+                .as_ref()
+                .map_or(flags, |p| p.outputs.applied_to(flags)),
+            policy: policy.map(|p| AppliedPolicy {
+                file: p.file,
+                sha256: p.sha256,
+            }),
             ..OutputsOptions::default()
         })
     }
@@ -145,7 +162,8 @@ pub fn run(args: &OutputsArgs) -> Result<Status> {
     Ok(Status::ThresholdExceeded)
 }
 
-/// Prints the summary (unless the JSON goes to standard output) and writes the requested files.
+/// Prints the summary (unless the JSON goes to standard output) and writes
+/// the requested files; every format is rendered from the same page.
 fn emit(
     report: &OutputsReport,
     dir: Option<&Path>,
@@ -154,13 +172,21 @@ fn emit(
 ) -> Result<()> {
     let text = serde_json::to_string_pretty(report).context("cannot serialise the report")? + "\n";
     let json_to_stdout = json.is_some_and(|p| p.as_os_str() == "-");
+    let page = report.page();
     if !json_to_stdout {
-        print!("{}", terminal::render(report));
+        let colour = std::io::stdout().is_terminal();
+        print!("{}", TerminalRenderer { colour }.render_page(&page));
     }
     if let Some(dir) = dir {
-        std::fs::create_dir_all(dir)
-            .with_context(|| format!("{}: cannot create folder", dir.display()))?;
-        write_one(&dir.join("report.json"), &text, force)?;
+        let documents = [
+            ("report.json", text.clone()),
+            (
+                MarkdownRenderer::FILE_NAME,
+                MarkdownRenderer.render_page(&page),
+            ),
+            (HtmlRenderer::FILE_NAME, HtmlRenderer.render_page(&page)),
+        ];
+        write_documents(dir, &documents, force)?;
         if !json_to_stdout {
             println!("report written to {}", dir.display());
         }

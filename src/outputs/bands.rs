@@ -1,7 +1,9 @@
 //! Calibration by group (observed outcome rate per score band) and thin
 //! segments (event counts too small for a rate to be read as a measurement).
 
-use super::contract::{CalibrationBand, CalibrationCell, Rate, ThinSegment};
+use super::contract::{
+    BandShare, CalibrationBand, CalibrationCell, DistributionBand, Rate, ThinSegment,
+};
 use crate::data::encode::{bin_of, quantile_edges};
 use crate::report::format::percent;
 use crate::stats::proportions::clopper_pearson;
@@ -38,9 +40,7 @@ pub fn calibration(
     min_cell: u64,
     level: f64,
 ) -> Vec<CalibrationBand> {
-    let mut sorted = score.to_vec();
-    sorted.sort_by(f64::total_cmp);
-    let edges = quantile_edges(&sorted, bands);
+    let edges = band_edges(score, bands);
     if edges.len() < 2 {
         return Vec::new();
     }
@@ -67,6 +67,59 @@ pub fn calibration(
                         count: shown.then_some(rows),
                         mean_score: shown.then(|| sum / rows as f64),
                         outcome_rate: exact_rate(events, rows, level).filter(|_| shown),
+                    }
+                })
+                .collect(),
+        })
+        .collect()
+}
+
+/// Edges of the pooled score's quantile bands; fewer than two when the score is constant.
+fn band_edges(score: &[f64], bands: usize) -> Vec<f64> {
+    let mut sorted = score.to_vec();
+    sorted.sort_by(f64::total_cmp);
+    quantile_edges(&sorted, bands)
+}
+
+/// Each class's share of its rows in each pooled-score band (the bands of
+/// [`calibration`]): how the score is distributed within each group. A
+/// score that does not stand in for the attribute puts every group's rows
+/// in the bands in about equal shares. Cells under `min_cell` rows, and
+/// every cell of a class under `min_cell` rows, are suppressed.
+#[must_use]
+pub fn score_distribution(
+    score: &[f64],
+    classes: &[u32],
+    labels: &[String],
+    bands: usize,
+    min_cell: u64,
+) -> Vec<DistributionBand> {
+    let edges = band_edges(score, bands);
+    if edges.len() < 2 {
+        return Vec::new();
+    }
+    let k = labels.len();
+    let mut counts = vec![0u64; (edges.len() - 1) * k];
+    let mut class_rows = vec![0u64; k];
+    for (&s, &c) in score.iter().zip(classes) {
+        counts[bin_of(&edges, s) as usize * k + c as usize] += 1;
+        class_rows[c as usize] += 1;
+    }
+    let floor = min_cell.max(1);
+    edges
+        .windows(2)
+        .enumerate()
+        .map(|(band, edge)| DistributionBand {
+            score_low: edge[0],
+            score_high: edge[1],
+            groups: (0..k)
+                .map(|c| {
+                    let rows = counts[band * k + c];
+                    let shown = rows >= floor && class_rows[c] >= floor;
+                    BandShare {
+                        label: labels[c].clone(),
+                        count: shown.then_some(rows),
+                        share: shown.then(|| rows as f64 / class_rows[c] as f64),
                     }
                 })
                 .collect(),
@@ -145,6 +198,30 @@ mod tests {
         );
         // Under min_cell rows: suppressed, not listed.
         assert!(thin_segments(&segments, 11, 0.95).is_empty());
+    }
+
+    #[test]
+    fn distribution_shares_sum_to_one_and_small_cells_are_suppressed() {
+        let score: Vec<f64> = (0..60).map(f64::from).collect();
+        // Class a: rows 0..40, class b: rows 40..60; two bands split at 29.5.
+        let classes: Vec<u32> = (0..60).map(|i| u32::from(i >= 40)).collect();
+        let labels = vec!["a".to_string(), "b".to_string()];
+        let bands = score_distribution(&score, &classes, &labels, 2, 10);
+        assert_eq!(bands.len(), 2);
+        assert_eq!(bands[0].groups[0].count, Some(30));
+        assert_eq!(bands[1].groups[0].count, Some(10));
+        assert_eq!(bands[0].groups[0].share, Some(0.75));
+        assert_eq!(
+            bands[0].groups[1].count, None,
+            "no row of b in the low band"
+        );
+        assert_eq!(bands[1].groups[1].share, Some(1.0));
+        let b_suppressed = score_distribution(&score, &classes, &labels, 2, 21);
+        assert!(
+            b_suppressed
+                .iter()
+                .all(|band| band.groups[1].share.is_none())
+        );
     }
 
     #[test]

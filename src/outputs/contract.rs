@@ -19,7 +19,18 @@ pub struct OutputsReport {
     pub results: Vec<OutputsResult>,
     /// Statements about what was not computed and why, and rows dropped.
     pub notes: Vec<String>,
+    /// The policy file whose `[outputs]` thresholds were applied, if any.
+    pub policy: Option<AppliedPolicy>,
+    /// Every threshold exceeded, one line each; non-empty exactly when the exit status is 1.
+    pub failing: Vec<String>,
     pub caution: String,
+}
+
+/// A policy file named by its exact bytes.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct AppliedPolicy {
+    pub file: String,
+    pub sha256: String,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
@@ -94,6 +105,9 @@ pub struct OutputsResult {
     pub standardized_mean_difference: Option<MeanDifferenceResult>,
     pub equalized_odds: Option<EqualizedOdds>,
     pub calibration: Vec<CalibrationBand>,
+    /// The score's distribution by group: each class's share of rows per
+    /// pooled-score band (the calibration table's bands).
+    pub score_distribution: Vec<DistributionBand>,
     pub thin_segments: Vec<ThinSegment>,
     /// Which features carry the attribute into the score (with `--features`).
     pub carriers: Vec<Carrier>,
@@ -141,7 +155,8 @@ pub struct GroupRates {
 pub struct ImpactRatio {
     /// Lowest selection rate over the highest, among groups with at least `min_cell` rows.
     pub ratio: Option<f64>,
-    /// Katz log interval (Katz et al. 1978); `null` when a rate is 0.
+    /// Katz log interval (Katz et al. 1978), Bonferroni-adjusted over the
+    /// pairs of groups when there are more than two; `null` when a rate is 0.
     pub ratio_low: Option<f64>,
     pub ratio_high: Option<f64>,
     pub lowest: String,
@@ -171,7 +186,8 @@ pub struct MeanDifferenceResult {
     pub smd_high: f64,
 }
 
-/// The largest difference of a rate between groups, with its interval.
+/// The largest difference of a rate between groups, with its Newcombe
+/// interval (Bonferroni-adjusted over the pairs of groups when there are more than two).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct RateGap {
     pub difference: f64,
@@ -205,6 +221,23 @@ pub struct CalibrationCell {
     pub mean_score: Option<f64>,
     /// Observed share with outcome 1, with its exact interval.
     pub outcome_rate: Option<Rate>,
+}
+
+/// One pooled-score band of the score's distribution by group.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct DistributionBand {
+    pub score_low: f64,
+    pub score_high: f64,
+    pub groups: Vec<BandShare>,
+}
+
+/// One class's rows in a band; `null` below `min_cell` rows (in the band or the class).
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct BandShare {
+    pub label: String,
+    pub count: Option<u64>,
+    /// `count` over the class's rows.
+    pub share: Option<f64>,
 }
 
 /// A segment whose event count is too small for its rate to be read as a

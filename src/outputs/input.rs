@@ -9,7 +9,7 @@ use crate::data::missing::MissingTokens;
 use crate::data::prepare::{self, EncodeOptions, Roles, Values, values_of};
 use crate::data::{EncodedTable, FeatureKind};
 use crate::error::InputError;
-use polars::prelude::{BooleanChunked, Column, DataFrame, NewChunkedArray};
+use polars::prelude::{BooleanChunked, DataFrame, NewChunkedArray};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
@@ -85,7 +85,15 @@ pub fn read_scored(spec: &ScoredSpec) -> Result<ScoredData, InputError> {
     needed.sort();
     needed.dedup();
     let frame = load::read_columns(&summary, &needed, spec.load)?;
-    let (keep, dropped) = complete_rows(path, &frame, spec)?;
+    let missing = &spec.encode.missing;
+    let (keep, dropped) = complete_rows(
+        &Columns {
+            path,
+            frame: &frame,
+            missing,
+        },
+        spec,
+    )?;
     let frame = frame
         .filter(&BooleanChunked::from_slice("keep".into(), &keep))
         .map_err(|e| InputError::Format {
@@ -99,9 +107,14 @@ pub fn read_scored(spec: &ScoredSpec) -> Result<ScoredData, InputError> {
         });
     }
     let table = prepare::encode_table(path, &frame, &plan, &roles, &spec.encode)?;
-    let score = numbers(path, &frame, &spec.score, "score")?;
+    let columns = Columns {
+        path,
+        frame: &frame,
+        missing,
+    };
+    let score = numbers(&columns, &spec.score, "score")?;
     let (selected, threshold) = match &spec.selection {
-        Selection::Column(column) => (binary(path, &frame, column, "decision")?, None),
+        Selection::Column(column) => (binary(&columns, column, "decision")?, None),
         Selection::Threshold(t) => (select_at(path, &spec.score, &score, *t)?, Some(*t)),
         Selection::Rate(share) => {
             let t = rate_threshold(&score, *share);
@@ -109,11 +122,11 @@ pub fn read_scored(spec: &ScoredSpec) -> Result<ScoredData, InputError> {
         }
     };
     let outcome = match &spec.outcome {
-        Some(column) => Some(binary(path, &frame, column, "outcome")?),
+        Some(column) => Some(binary(&columns, column, "outcome")?),
         None => None,
     };
     let segment = match &spec.segment {
-        Some(column) => Some(levels(path, &frame, column)?),
+        Some(column) => Some(levels(&columns, column)?),
         None => None,
     };
     Ok(ScoredData {
@@ -138,10 +151,23 @@ fn role_columns(spec: &ScoredSpec) -> Vec<String> {
     columns
 }
 
-/// A column's values with the default missing-value tokens read as missing,
-/// as `scan` reads them without `--na-values`.
-fn column_values<'a>(path: &Path, column: &'a Column) -> Result<Values<'a>, InputError> {
-    values_of(path, column, &MissingTokens::default()).map(|(values, _)| values)
+/// The read columns of one file and the field texts read as missing
+/// (`--na-values`, as `scan` reads them).
+struct Columns<'a> {
+    path: &'a Path,
+    frame: &'a DataFrame,
+    missing: &'a MissingTokens,
+}
+
+impl<'a> Columns<'a> {
+    /// A column's values, missing tokens read as missing.
+    fn values(&self, column: &str) -> Result<Values<'a>, InputError> {
+        let values = self
+            .frame
+            .column(column)
+            .map_err(|e| bad(self.path, column, e.to_string()))?;
+        values_of(self.path, values, self.missing).map(|(values, _)| values)
+    }
 }
 
 fn bad(path: &Path, column: &str, reason: String) -> InputError {
@@ -153,11 +179,8 @@ fn bad(path: &Path, column: &str, reason: String) -> InputError {
 }
 
 /// Per row: is it missing in `column`?
-fn missing_mask(path: &Path, frame: &DataFrame, column: &str) -> Result<Vec<bool>, InputError> {
-    let values = frame
-        .column(column)
-        .map_err(|e| bad(path, column, e.to_string()))?;
-    Ok(match column_values(path, values)? {
+fn missing_mask(columns: &Columns, column: &str) -> Result<Vec<bool>, InputError> {
+    Ok(match columns.values(column)? {
         Values::Text(text) => text.iter().map(Option::is_none).collect(),
         Values::Numbers(numbers) => numbers.iter().map(|v| v.is_nan()).collect(),
     })
@@ -166,8 +189,7 @@ fn missing_mask(path: &Path, frame: &DataFrame, column: &str) -> Result<Vec<bool
 /// Rows where the score, the decision, the outcome and every protected
 /// attribute are present, and how many rows each missing column drops.
 fn complete_rows(
-    path: &Path,
-    frame: &DataFrame,
+    columns: &Columns,
     spec: &ScoredSpec,
 ) -> Result<(Vec<bool>, BTreeMap<String, usize>), InputError> {
     let mut required: Vec<(String, &str)> = vec![(spec.score.clone(), "score")];
@@ -180,10 +202,10 @@ fn complete_rows(
     for protected in &spec.roles.protected {
         required.push((protected.clone(), "protected attribute"));
     }
-    let mut keep = vec![true; frame.height()];
+    let mut keep = vec![true; columns.frame.height()];
     let mut dropped = BTreeMap::new();
     for (column, role) in &required {
-        let missing = missing_mask(path, frame, column)?;
+        let missing = missing_mask(columns, column)?;
         let newly = keep
             .iter()
             .zip(&missing)
@@ -200,16 +222,9 @@ fn complete_rows(
 }
 
 /// The values of a column that must be numeric on every (present) row.
-fn numbers(
-    path: &Path,
-    frame: &DataFrame,
-    column: &str,
-    role: &str,
-) -> Result<Vec<f64>, InputError> {
-    let values = frame
-        .column(column)
-        .map_err(|e| bad(path, column, e.to_string()))?;
-    match column_values(path, values)? {
+fn numbers(columns: &Columns, column: &str, role: &str) -> Result<Vec<f64>, InputError> {
+    let path = columns.path;
+    match columns.values(column)? {
         Values::Numbers(numbers) => Ok(numbers),
         Values::Text(text) => text
             .iter()
@@ -228,12 +243,8 @@ fn numbers(
 }
 
 /// A 0/1 column as booleans; any other value is an input error.
-fn binary(
-    path: &Path,
-    frame: &DataFrame,
-    column: &str,
-    role: &str,
-) -> Result<Vec<bool>, InputError> {
+fn binary(columns: &Columns, column: &str, role: &str) -> Result<Vec<bool>, InputError> {
+    let path = columns.path;
     let not_binary = |value: String| {
         bad(
             path,
@@ -241,10 +252,7 @@ fn binary(
             format!("the {role} must be 0 or 1 on every row, but a row holds `{value}`"),
         )
     };
-    let values = frame
-        .column(column)
-        .map_err(|e| bad(path, column, e.to_string()))?;
-    match column_values(path, values)? {
+    match columns.values(column)? {
         Values::Numbers(numbers) => numbers
             .iter()
             .map(|&v| match v {
@@ -297,11 +305,8 @@ pub fn rate_threshold(score: &[f64], share: f64) -> f64 {
 }
 
 /// A column's values as sorted levels, missing as its own level.
-fn levels(path: &Path, frame: &DataFrame, column: &str) -> Result<Levels, InputError> {
-    let values = frame
-        .column(column)
-        .map_err(|e| bad(path, column, e.to_string()))?;
-    let text: Vec<Option<String>> = match column_values(path, values)? {
+fn levels(columns: &Columns, column: &str) -> Result<Levels, InputError> {
+    let text: Vec<Option<String>> = match columns.values(column)? {
         Values::Text(text) => text.iter().map(|v| v.map(str::to_string)).collect(),
         Values::Numbers(numbers) => numbers
             .iter()

@@ -7,9 +7,11 @@
 pub(crate) mod bands;
 pub mod contract;
 pub mod input;
+pub(crate) mod layout;
 pub(crate) mod proxy;
 pub(crate) mod rates;
-pub mod terminal;
+
+pub use proxy::{Separation, separation};
 
 pub use contract::*;
 
@@ -17,21 +19,24 @@ use crate::data::ProtectedAttribute;
 use crate::pipeline::file_dataset;
 use crate::report::format::percent;
 use crate::report::{DatasetInfo, SCHEMA_VERSION, ToolInfo};
-use bands::{SegmentCount, calibration, thin_segments};
+use bands::{SegmentCount, calibration, score_distribution, thin_segments};
 use input::{Levels, ScoredData, ScoredSpec, Selection};
 use rates::{
     GroupCounts, count_groups, equalized_odds, group_rates, impact_ratio, mean_difference,
 };
 
 /// Settings of the evaluation.
-#[derive(Debug, Clone, Copy)]
+#[derive(Debug, Clone)]
 pub struct OutputsOptions {
     pub min_cell: u64,
     /// Confidence level of every interval.
     pub level: f64,
     /// Score bands of the calibration table.
     pub bands: usize,
+    /// The gate's thresholds, policy overrides already applied.
     pub thresholds: OutputsThresholds,
+    /// The policy file the thresholds came from, if any.
+    pub policy: Option<AppliedPolicy>,
 }
 
 impl Default for OutputsOptions {
@@ -45,6 +50,7 @@ impl Default for OutputsOptions {
                 impact_ratio: 0.8,
                 odds_gap_low: None,
             },
+            policy: None,
         }
     }
 }
@@ -95,7 +101,13 @@ pub fn build_report(
                 .to_string(),
         );
     }
-    OutputsReport {
+    if let Some(policy) = &options.policy {
+        notes.push(format!(
+            "thresholds of policy {} (SHA-256 {}) applied",
+            policy.file, policy.sha256
+        ));
+    }
+    let mut report = OutputsReport {
         schema_version: SCHEMA_VERSION,
         report_kind: "outputs".to_string(),
         tool: ToolInfo {
@@ -114,8 +126,12 @@ pub fn build_report(
         settings: settings(data, spec, options, command),
         results,
         notes,
+        policy: options.policy.clone(),
+        failing: Vec::new(),
         caution: crate::CAUTION.to_string(),
-    }
+    };
+    report.failing = gate_failures(&report);
+    report
 }
 
 fn settings(
@@ -219,6 +235,13 @@ fn evaluate(
                 )
             })
             .unwrap_or_default(),
+        score_distribution: score_distribution(
+            &data.score,
+            classes,
+            labels,
+            options.bands,
+            min_cell,
+        ),
         thin_segments: thin(data, attribute, &counts, options),
         carriers: proxy::carriers(
             &data.score,
@@ -337,7 +360,8 @@ fn headline(result: &OutputsResult) -> String {
     format!("{proxy}{impact}{odds}.")
 }
 
-/// The thresholds a report exceeds, one line each (empty: exit 0).
+/// The thresholds a report exceeds, one line each (empty: exit 0): the one
+/// gate of `outputs`, whose list the report stores as `failing`.
 #[must_use]
 pub fn gate_failures(report: &OutputsReport) -> Vec<String> {
     let thresholds = report.settings.thresholds;

@@ -137,6 +137,8 @@ fn svg_of(chart: &Chart) -> String {
             whole,
             max_loss,
         } => svg::tradeoff::frontier(title, whole, *max_loss),
+        Chart::RatePanels { title, panels } => svg::groups::rate_panels(title, panels),
+        Chart::GroupLines { title, axes, lines } => svg::groups::group_lines(title, axes, lines),
     }
 }
 

@@ -5,6 +5,7 @@
 //! and colour.
 
 use super::svg::RocSeries;
+use super::svg::groups::{GroupLine, LineAxes, RatePanel};
 use super::{FeatureResult, Flag, PairResult, Thresholds, WholeSet};
 
 /// One document: a title, blocks before the first section, then sections.
@@ -356,6 +357,22 @@ pub enum Chart<'a> {
         whole: &'a WholeSet,
         /// The target drawn as a line.
         target_auc: f64,
+    },
+    /// A rate per group with its interval, one panel per rate.
+    RatePanels {
+        /// Chart title.
+        title: String,
+        /// The panels, top to bottom.
+        panels: Vec<RatePanel>,
+    },
+    /// One line per group over a shared axis, e.g. score bands.
+    GroupLines {
+        /// Chart title.
+        title: String,
+        /// Axis titles and ranges.
+        axes: LineAxes,
+        /// The lines.
+        lines: Vec<GroupLine>,
     },
 }
 

@@ -9,6 +9,7 @@ use super::{FeatureResult, Flag, PairResult, Thresholds, WholeSet};
 use std::collections::BTreeMap;
 use std::fmt::Write;
 
+pub mod groups;
 pub mod tradeoff;
 
 /// Width of every chart in user units (the page scales it to its column).

@@ -4,6 +4,7 @@
 //! thresholds and lists what still fails, which decides the exit status.
 
 use super::gate::gate_failures;
+use crate::outputs::OutputsThresholds;
 use crate::report::{Acceptance, PolicyOutcome, Report, Thresholds};
 use crate::scan::flag_for;
 use serde::Deserialize;
@@ -61,6 +62,38 @@ impl PolicyThresholds {
     }
 }
 
+/// The `[outputs]` table: thresholds of the `outputs` gate; `None` keeps
+/// the command line's value. `scan` ignores it, `outputs` ignores the rest.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct OutputsPolicyThresholds {
+    /// Fail when the score AUC's lower bound reaches this.
+    pub score_auc_low: Option<f64>,
+    /// Fail when the adverse impact ratio is below this.
+    pub impact_ratio_min: Option<f64>,
+    /// Fail when an equalized-odds gap's lower bound reaches this.
+    pub odds_gap_low: Option<f64>,
+}
+
+impl OutputsPolicyThresholds {
+    /// Whether the policy sets any outputs threshold.
+    #[must_use]
+    pub fn is_set(&self) -> bool {
+        self.score_auc_low.is_some()
+            || self.impact_ratio_min.is_some()
+            || self.odds_gap_low.is_some()
+    }
+
+    /// `base` with this policy's overrides applied.
+    #[must_use]
+    pub fn applied_to(&self, base: OutputsThresholds) -> OutputsThresholds {
+        OutputsThresholds {
+            proxy_auc_low: self.score_auc_low.unwrap_or(base.proxy_auc_low),
+            impact_ratio: self.impact_ratio_min.unwrap_or(base.impact_ratio),
+            odds_gap_low: self.odds_gap_low.or(base.odds_gap_low),
+        }
+    }
+}
+
 /// One `[[accept]]` entry: a feature a reviewer has accepted despite its flag.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AcceptRule {
@@ -100,6 +133,8 @@ pub struct Policy {
     pub thresholds: PolicyThresholds,
     /// The `[[accept]]` entries in file order; a later match overrides an earlier one.
     pub accept: Vec<AcceptRule>,
+    /// Thresholds of the `outputs` gate from `[outputs]`.
+    pub outputs: OutputsPolicyThresholds,
 }
 
 #[derive(Deserialize)]
@@ -109,6 +144,16 @@ struct RawPolicy {
     thresholds: RawThresholds,
     #[serde(default)]
     accept: Vec<Spanned<RawAccept>>,
+    #[serde(default)]
+    outputs: RawOutputsThresholds,
+}
+
+#[derive(Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct RawOutputsThresholds {
+    score_auc_low: Option<Spanned<f64>>,
+    impact_ratio_min: Option<Spanned<f64>>,
+    odds_gap_low: Option<Spanned<f64>>,
 }
 
 #[derive(Deserialize, Default)]
@@ -159,6 +204,7 @@ impl Policy {
                 .into_iter()
                 .map(|entry| located.accept_rule(entry))
                 .collect::<Result<_, _>>()?,
+            outputs: located.outputs_thresholds(raw.outputs)?,
         })
     }
 
@@ -313,6 +359,17 @@ impl Locator<'_> {
         })
     }
 
+    fn outputs_thresholds(
+        &self,
+        raw: RawOutputsThresholds,
+    ) -> Result<OutputsPolicyThresholds, PolicyError> {
+        Ok(OutputsPolicyThresholds {
+            score_auc_low: self.unit_interval("score_auc_low", raw.score_auc_low)?,
+            impact_ratio_min: self.unit_interval("impact_ratio_min", raw.impact_ratio_min)?,
+            odds_gap_low: self.unit_interval("odds_gap_low", raw.odds_gap_low)?,
+        })
+    }
+
     fn unit_interval(
         &self,
         key: &str,
@@ -435,6 +492,33 @@ fn civil_from_days(days: i64) -> (i64, u32, u32) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn outputs_table_overrides_only_the_thresholds_it_sets() {
+        let policy = Policy::from_toml_str(
+            "[outputs]\nimpact_ratio_min = 0.9\nodds_gap_low = 0.05\n",
+            "p.toml",
+        )
+        .unwrap();
+        let base = OutputsThresholds {
+            proxy_auc_low: 0.7,
+            impact_ratio: 0.8,
+            odds_gap_low: None,
+        };
+        let applied = policy.outputs.applied_to(base);
+        assert_eq!(applied.proxy_auc_low, 0.7);
+        assert_eq!(applied.impact_ratio, 0.9);
+        assert_eq!(applied.odds_gap_low, Some(0.05));
+        let error = Policy::from_toml_str("[outputs]\n\nscore_auc_low = 1.5\n", "p.toml")
+            .unwrap_err()
+            .to_string();
+        assert_eq!(error, "p.toml: line 3: score_auc_low = 1.5 is outside 0..1");
+        let unknown = Policy::from_toml_str("[outputs]\nimpact = 0.8\n", "p.toml").unwrap_err();
+        assert!(
+            unknown.to_string().starts_with("p.toml: line 2:"),
+            "{unknown}"
+        );
+    }
 
     // Unix times and their UTC dates as printed by GNU coreutils `date -u -d @T`:
     // 0 → 1970-01-01 (the POSIX epoch), 946684800 → 2000-01-01,

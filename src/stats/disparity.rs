@@ -43,6 +43,19 @@ fn extremes(groups: &[Tally]) -> Option<(usize, usize)> {
     Some((lowest, highest))
 }
 
+/// The level of each pairwise interval so that the intervals of all
+/// m = g(g − 1)/2 pairs of the g groups with rows hold together with
+/// probability at least `level` (Bonferroni: Dunn 1961, "Multiple
+/// comparisons among means", *JASA* 56, 52–64): 1 − (1 − level)/m. The
+/// interval of the pair picked from the data (lowest and highest rate) then
+/// holds that pair's true value at least `level` of the time; with two
+/// groups it is `level` itself.
+fn pairwise_level(groups: &[Tally], level: f64) -> f64 {
+    let g = groups.iter().filter(|t| t.rows > 0).count() as f64;
+    let pairs = (g * (g - 1.0) / 2.0).max(1.0);
+    1.0 - (1.0 - level) / pairs
+}
+
 /// The adverse impact ratio of a set of groups.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct AdverseImpact {
@@ -64,9 +77,10 @@ pub struct AdverseImpact {
 /// Guidelines on Employee Selection Procedures 1978: each group's rate over
 /// the highest group's), with the Katz log interval of the ratio of the two
 /// groups' rates ([`katz_ratio`]) and Fisher's exact test of their 2×2
-/// table. The interval treats the two groups as chosen in advance; it does
-/// not widen for having picked the extremes. `None` with fewer than two
-/// groups that have rows.
+/// table. The two groups are picked from the data as the extremes, so with
+/// more than two groups the interval is taken at [`pairwise_level`]; the
+/// Fisher p-value is that of the two groups as if chosen in advance. `None`
+/// with fewer than two groups that have rows.
 #[must_use]
 pub fn adverse_impact(groups: &[Tally], level: f64) -> Option<AdverseImpact> {
     let (lowest, highest) = extremes(groups)?;
@@ -76,7 +90,11 @@ pub fn adverse_impact(groups: &[Tally], level: f64) -> Option<AdverseImpact> {
         lowest,
         highest,
         ratio: ratio.is_finite().then_some(ratio),
-        interval: katz_ratio((low.events, low.rows), (high.events, high.rows), level),
+        interval: katz_ratio(
+            (low.events, low.rows),
+            (high.events, high.rows),
+            pairwise_level(groups, level),
+        ),
         below_four_fifths: violates_four_fifths(low.events, low.rows, high.events, high.rows),
         fisher_p: fisher_exact_two_sided([
             [low.events, low.rows - low.events],
@@ -99,13 +117,18 @@ pub struct Gap {
 /// The largest difference between groups' rates (highest minus lowest),
 /// the form of the equalized-odds gaps of Hardt, Price & Srebro (2016),
 /// "Equality of Opportunity in Supervised Learning", *NeurIPS*, §3, applied
-/// to the true and false positive rates. `None` with fewer than two groups
-/// that have rows.
+/// to the true and false positive rates, with the Newcombe interval of the
+/// two groups' difference at [`pairwise_level`]. `None` with fewer than two
+/// groups that have rows.
 #[must_use]
 pub fn largest_gap(groups: &[Tally], level: f64) -> Option<Gap> {
     let (lowest, highest) = extremes(groups)?;
     let (low, high) = (groups[lowest], groups[highest]);
-    let interval = newcombe_difference((high.events, high.rows), (low.events, low.rows), level)?;
+    let interval = newcombe_difference(
+        (high.events, high.rows),
+        (low.events, low.rows),
+        pairwise_level(groups, level),
+    )?;
     Some(Gap {
         highest,
         lowest,
