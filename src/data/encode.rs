@@ -170,15 +170,12 @@ where
     }
 }
 
-/// Formats a number as a level label the way Python's `repr(float)` does for
-/// the values we meet (shortest round-trip text, `.0` on whole numbers).
+/// Formats a number as a level label: the shortest text that reads back as
+/// the same value, so whole numbers (codes, counts) print as written in the
+/// file (`194`, not `194.0`).
 #[must_use]
 pub fn number_label(v: f64) -> String {
-    if v.fract() == 0.0 && v.abs() < 1e16 {
-        format!("{v:.1}")
-    } else {
-        format!("{v}")
-    }
+    format!("{v}")
 }
 
 /// Encodes a numeric column with few distinct values as one level per value,

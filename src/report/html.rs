@@ -18,7 +18,7 @@ const STYLE: &str = r#"
 * { box-sizing: border-box; }
 body { margin: 0; background: var(--paper); color: var(--ink);
   font: 15px/1.5 system-ui, "Segoe UI", "DejaVu Sans", sans-serif; }
-main { max-width: 980px; margin: 0 auto; padding: 24px 28px 48px; }
+main { max-width: 1080px; margin: 0 auto; padding: 24px 28px 48px; }
 h1 { font-size: 1.7em; margin: 0 0 4px; }
 h2 { font-size: 1.35em; margin: 36px 0 8px; padding-bottom: 4px; border-bottom: 2px solid var(--ink); }
 h3 { font-size: 1.1em; margin: 26px 0 6px; }
@@ -29,8 +29,10 @@ h4 { font-size: 1em; margin: 18px 0 4px; }
 table { border-collapse: collapse; margin: 8px 0 14px; font-size: 0.9em; }
 th, td { padding: 4px 10px; border-bottom: 1px solid var(--rule); text-align: left; vertical-align: top; }
 th { background: var(--tint); font-weight: 600; }
-td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
-td:first-child { overflow-wrap: anywhere; max-width: 320px; }
+td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
+td.num { white-space: nowrap; }
+td:first-child { overflow-wrap: break-word; max-width: 320px; }
+.table-wrap { overflow-x: auto; }
 table.settings th { width: 150px; }
 code { font-family: ui-monospace, "DejaVu Sans Mono", monospace; font-size: 0.92em; overflow-wrap: anywhere; }
 .tone-alarm { color: #b3261e; }
@@ -201,7 +203,7 @@ impl Backend for HtmlRenderer {
             .collect();
         let name = t.name;
         format!(
-            r#"<table class="{name}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"#
+            r#"<div class="table-wrap"><table class="{name}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table></div>"#
         )
     }
 

@@ -565,7 +565,8 @@ fn compositions_section(result: &ProtectedResult, min_cell: u64) -> Option<Secti
 /// What the suppressed-cell placeholder means.
 fn suppression_footnote(min_cell: u64) -> String {
     format!(
-        "{}: fewer than {min_cell} rows; the count and the group shares of that level are withheld.",
+        "{}: fewer than {min_cell} rows (in the level, or of one group in it); that figure, and \
+         every share that would reveal it, is withheld.",
         format::suppressed(min_cell)
     )
 }
