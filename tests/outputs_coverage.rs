@@ -113,6 +113,22 @@ fn adverse_impact_ratio_interval_covers_the_named_groups_ratio() {
     });
 }
 
+/// Under equal selection rates Fisher's test of the extreme pair must not
+/// reject more often than its level: "coverage" here is the share of data
+/// sets with p ≥ 0.05, held to the same floor. Unadjusted, the extremes of
+/// four equal groups are picked from noise and the test rejects too often;
+/// the reported p is multiplied by the six pairs (Dunn 1961).
+#[test]
+fn fisher_test_of_the_extreme_pair_keeps_its_level_under_equal_rates() {
+    const EQUAL: [(&str, &[f64]); 2] = [
+        ("2 equal groups, rate 0.40", &[0.4, 0.4]),
+        ("4 equal groups, rate 0.40", &[0.4, 0.4, 0.4, 0.4]),
+    ];
+    extreme_pair_coverage("Fisher p >= 0.05", &EQUAL, 41, |tallies, _| {
+        Some(adverse_impact(tallies, LEVEL)?.fisher_p >= 0.05)
+    });
+}
+
 /// True positive rates of groups (n is then the positives per group).
 const GAP_DESIGNS: [(&str, &[f64]); 3] = [
     ("2 groups, TPR 0.80 and 0.60", &[0.8, 0.6]),

@@ -163,7 +163,10 @@ pub struct ImpactRatio {
     pub highest: String,
     pub four_fifths: FourFifths,
     /// Fisher's exact test (two-sided) of the lowest and highest groups'
-    /// selection rates; 0 where it underflows a double (below about 1e-308).
+    /// selection rates, with more than two groups multiplied by the number of
+    /// group pairs (Bonferroni, capped at 1), since the two are picked as the
+    /// extremes; 0 where it underflows a double (below about 1e-308).
+    /// Computed by `stats::adverse_impact`.
     pub fisher_exact_p: f64,
 }
 

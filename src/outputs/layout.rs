@@ -342,7 +342,8 @@ fn rates_section(result: &OutputsResult, min_cell: u64) -> Section<'static> {
         blocks.push(Block::List(reasons));
     }
     if let Some(impact) = &result.adverse_impact_ratio {
-        blocks.push(Block::paragraph(Role::Body, impact_text(impact)));
+        let compared = result.groups.iter().filter(|g| g.count.is_some()).count();
+        blocks.push(Block::paragraph(Role::Body, impact_text(impact, compared)));
         blocks.push(Block::paragraph(
             Role::Meta,
             format!(
@@ -504,7 +505,9 @@ fn p_value(p: f64) -> String {
     }
 }
 
-fn impact_text(impact: &ImpactRatio) -> String {
+/// The ratio sentence; `compared` groups with rows shown (more than two:
+/// the p-value is adjusted for picking the extreme pair).
+fn impact_text(impact: &ImpactRatio, compared: usize) -> String {
     let ratio = match (impact.ratio, impact.ratio_low, impact.ratio_high) {
         (Some(r), Some(l), Some(h)) => format!("{r:.3} [{l:.3}, {h:.3}]"),
         (Some(r), _, _) => format!("{r:.3} (interval not estimable: a rate is 0)"),
@@ -515,9 +518,17 @@ fn impact_text(impact: &ImpactRatio) -> String {
     } else {
         "not below"
     };
+    let adjusted = if compared > 2 {
+        format!(
+            " (Bonferroni-adjusted over the {} pairs of {compared} groups)",
+            compared * (compared - 1) / 2
+        )
+    } else {
+        String::new()
+    };
     format!(
         "Adverse impact ratio (selection rate of {} over that of {}): {ratio}, {verdict} \
-         four-fifths. Fisher's exact test of the two rates: p {}.",
+         four-fifths. Fisher's exact test of the two rates{adjusted}: p {}.",
         impact.lowest,
         impact.highest,
         p_value(impact.fisher_exact_p)

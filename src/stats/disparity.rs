@@ -51,9 +51,13 @@ fn extremes(groups: &[Tally]) -> Option<(usize, usize)> {
 /// holds that pair's true value at least `level` of the time; with two
 /// groups it is `level` itself.
 fn pairwise_level(groups: &[Tally], level: f64) -> f64 {
+    1.0 - (1.0 - level) / pair_count(groups)
+}
+
+/// m = g(g − 1)/2 for the g groups with rows (at least 1).
+fn pair_count(groups: &[Tally]) -> f64 {
     let g = groups.iter().filter(|t| t.rows > 0).count() as f64;
-    let pairs = (g * (g - 1.0) / 2.0).max(1.0);
-    1.0 - (1.0 - level) / pairs
+    (g * (g - 1.0) / 2.0).max(1.0)
 }
 
 /// The adverse impact ratio of a set of groups.
@@ -69,7 +73,8 @@ pub struct AdverseImpact {
     pub interval: Option<Interval>,
     /// The ratio is below 4/5, decided in exact integer arithmetic.
     pub below_four_fifths: bool,
-    /// Fisher's exact test (two-sided) of the two groups' selection rates.
+    /// Fisher's exact test (two-sided) of the two groups' selection rates,
+    /// Bonferroni-adjusted over the pairs when there are more than two groups.
     pub fisher_p: f64,
 }
 
@@ -78,9 +83,11 @@ pub struct AdverseImpact {
 /// the highest group's), with the Katz log interval of the ratio of the two
 /// groups' rates ([`katz_ratio`]) and Fisher's exact test of their 2×2
 /// table. The two groups are picked from the data as the extremes, so with
-/// more than two groups the interval is taken at [`pairwise_level`]; the
-/// Fisher p-value is that of the two groups as if chosen in advance. `None`
-/// with fewer than two groups that have rows.
+/// more than two groups the interval is taken at [`pairwise_level`] and the
+/// Fisher p-value is multiplied by the number of pairs m (capped at 1), the
+/// same Bonferroni correction (Dunn 1961): the extremes are the pair most
+/// likely to differ by chance. `None` with fewer than two groups that have
+/// rows.
 #[must_use]
 pub fn adverse_impact(groups: &[Tally], level: f64) -> Option<AdverseImpact> {
     let (lowest, highest) = extremes(groups)?;
@@ -96,10 +103,11 @@ pub fn adverse_impact(groups: &[Tally], level: f64) -> Option<AdverseImpact> {
             pairwise_level(groups, level),
         ),
         below_four_fifths: violates_four_fifths(low.events, low.rows, high.events, high.rows),
-        fisher_p: fisher_exact_two_sided([
+        fisher_p: (fisher_exact_two_sided([
             [low.events, low.rows - low.events],
             [high.events, high.rows - high.events],
-        ]),
+        ]) * pair_count(groups))
+        .min(1.0),
     })
 }
 
@@ -161,6 +169,23 @@ mod tests {
         assert!(impact.below_four_fifths);
         let ci = impact.interval.unwrap();
         assert!(ci.low < 0.75 && 0.75 < ci.high);
+    }
+
+    #[test]
+    fn the_extreme_pair_of_several_groups_has_a_bonferroni_adjusted_fisher_p() {
+        // Four groups, m = 6 pairs: the extremes' two-sided Fisher p times 6
+        // (Dunn 1961), against the same 2×2 table tested alone.
+        let groups = [
+            tally(60, 100),
+            tally(45, 100),
+            tally(48, 100),
+            tally(51, 100),
+        ];
+        let impact = adverse_impact(&groups, 0.95).unwrap();
+        let alone = fisher_exact_two_sided([[45, 55], [60, 40]]);
+        assert!((impact.fisher_p - (6.0 * alone).min(1.0)).abs() < 1e-12);
+        let two = adverse_impact(&groups[..2], 0.95).unwrap();
+        assert!((two.fisher_p - alone).abs() < 1e-15);
     }
 
     #[test]
