@@ -57,15 +57,32 @@ fn uniform(levels: usize) -> Vec<Vec<f64>> {
 /// Share of `replicates` seeded data sets (2 000 rows, 30 % minority) whose
 /// 95 % interval for a column drawn from `shares` covers `truth`.
 fn coverage(shares: &[Vec<f64>], truth: f64, replicates: u64) -> f64 {
+    coverage_with(&[0.7, 0.3], shares, truth, replicates)
+}
+
+/// [`coverage`] with class c drawn with probability `priors[c]` (the last
+/// class when u < its prior, and so on down, so that `[0.7, 0.3]` puts a row
+/// in class 1 when u < 0.3).
+fn coverage_with(priors: &[f64], shares: &[Vec<f64>], truth: f64, replicates: u64) -> f64 {
+    let labels: Vec<String> = (0..priors.len()).map(|c| format!("g{c}")).collect();
     let covered = (0..replicates)
         .filter(|&seed| {
             let mut rng = SplitMix64::new(1_000 + seed);
             let classes: Vec<u32> = (0..2_000)
-                .map(|_| u32::from(rng.next_f64() < 0.3))
+                .map(|_| {
+                    let (u, mut upper) = (rng.next_f64(), 0.0);
+                    (0..priors.len())
+                        .rev()
+                        .find(|&c| {
+                            upper += priors[c];
+                            u < upper
+                        })
+                        .unwrap_or(0) as u32
+                })
                 .collect();
             let group = ProtectedAttribute::from_codes(
                 "group".to_string(),
-                vec!["a".to_string(), "b".to_string()],
+                labels.clone(),
                 classes.clone(),
                 0,
             );
@@ -109,6 +126,70 @@ fn intervals_cover_chance_for_6_level_noise() {
 fn intervals_cover_chance_for_40_level_noise() {
     let rate = coverage(&uniform(40), 0.5, 600);
     assert!((0.93..=0.97).contains(&rate), "coverage {rate}");
+}
+
+#[test]
+fn intervals_cover_chance_for_a_three_class_attribute() {
+    // Macro one-vs-rest AUC (the multi-class AUC the report prints) of 6- and
+    // 40-level noise, classes 50/30/20 %: the truth is 0.5 for every class.
+    // A planted 4-level column: its truth is the macro one-vs-rest Bayes AUC
+    // of the generating pmfs ([`bayes_macro_ovr`]).
+    let priors = [0.5, 0.3, 0.2];
+    let planted = vec![
+        vec![0.4, 0.3, 0.2, 0.1],
+        vec![0.1, 0.2, 0.3, 0.4],
+        vec![0.25, 0.1, 0.4, 0.25],
+    ];
+    let mut rates: Vec<f64> = [6u32, 40]
+        .iter()
+        .map(|&levels| {
+            let shares = vec![vec![1.0 / f64::from(levels); levels as usize]; 3];
+            coverage_with(&priors, &shares, 0.5, 600)
+        })
+        .collect();
+    let truth = bayes_macro_ovr(&priors, &planted);
+    rates.push(coverage_with(&priors, &planted, truth, 600));
+    println!(
+        "three classes: coverage (6-level noise, 40-level noise, planted {truth:.4}) {rates:?}"
+    );
+    assert!(
+        rates.iter().all(|r| (0.93..=0.97).contains(r)),
+        "coverage {rates:?}"
+    );
+}
+
+/// Macro one-vs-rest Bayes AUC of a categorical column with level pmfs
+/// `shares[c]` and class priors `priors`: for each class c, the rest's pmf is
+/// the prior-weighted mixture of the others; levels ranked by the likelihood
+/// ratio give AUC_c = Σ_j P_c(j)·[Q_c(< j) + ½Q_c(j)] (Hanley & McNeil 1982,
+/// eq. 1 on the rating table); the macro AUC is the mean over classes (Hand &
+/// Till 2001 define the one-vs-rest average this way).
+fn bayes_macro_ovr(priors: &[f64], shares: &[Vec<f64>]) -> f64 {
+    let classes = priors.len();
+    let per_class = (0..classes).map(|c| {
+        let rest_mass = 1.0 - priors[c];
+        let rest: Vec<f64> = (0..shares[c].len())
+            .map(|j| {
+                (0..classes)
+                    .filter(|&d| d != c)
+                    .map(|d| priors[d] * shares[d][j])
+                    .sum::<f64>()
+                    / rest_mass
+            })
+            .collect();
+        let mut levels: Vec<usize> = (0..rest.len()).collect();
+        levels.sort_by(|&a, &b| (shares[c][a] / rest[a]).total_cmp(&(shares[c][b] / rest[b])));
+        let mut below = 0.0;
+        levels
+            .iter()
+            .map(|&j| {
+                let auc = shares[c][j] * (below + 0.5 * rest[j]);
+                below += rest[j];
+                auc
+            })
+            .sum::<f64>()
+    });
+    per_class.sum::<f64>() / classes as f64
 }
 
 /// `count` noise columns over `classes`: numerics, 6-level and 40-level categoricals in turn.

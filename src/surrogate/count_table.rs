@@ -15,6 +15,7 @@ use crate::keys::KeyIndex;
 use crate::stats::auc::auc_from_weighted_scores;
 use crate::stats::heldout::PROBABILITY_FLOOR;
 use crate::stats::information::entropy;
+use std::ops::Range;
 
 /// Class counts of the frequency surrogate per non-empty (cell, fold).
 #[derive(Debug, Clone)]
@@ -334,39 +335,105 @@ impl CountTable {
 
     /// Variance of the fold-mean AUC of [`Self::auc`] with each fold's
     /// model taken as fixed, the influence-function variance of LeDell,
-    /// Petersen & van der Laan (2015, §3): (1/V²) Σ_f DeLong variance of
-    /// fold f's AUC (DeLong et al. 1988 on the fold's rating table). Two
-    /// classes only (`None` otherwise, or when a fold has fewer than two
-    /// rows of a class).
+    /// Petersen & van der Laan (2015, §3): (1/V²) Σ_f Var(AUC_f). Two classes:
+    /// Var(AUC_f) is the DeLong variance of fold f's AUC (DeLong et al. 1988
+    /// on the fold's rating table). More: AUC_f is the mean of the k
+    /// one-vs-rest AUCs, which share rows, so Var(AUC_f) is Σ_r φ(r)², φ(r)
+    /// the mean over classes of each AUC's influence at row r
+    /// ([`Self::macro_fold_variance`]). `None` when a fold lacks a class.
     #[must_use]
     pub fn fixed_model_variance(&self, positive: usize) -> Option<f64> {
-        let k = self.k;
-        if k != 2 {
-            return None;
-        }
         let posteriors = self.posteriors(&self.counts);
         let mut total = 0.0;
-        for fold in 0..self.n_folds as u8 {
-            let mut items: Vec<(f64, u64, u64)> = self
-                .entries
-                .iter()
-                .zip(self.counts.chunks_exact(k))
-                .zip(posteriors.chunks_exact(k))
-                .filter(|((e, _), _)| e.1 == fold)
-                .map(|((_, c), p)| {
-                    let pos = c[positive] as u64;
-                    (p[positive], c.iter().sum::<f64>() as u64 - pos, pos)
-                })
-                .collect();
-            items.sort_by(|a, b| a.0.total_cmp(&b.0));
-            let (mut neg, mut pos) = (Vec::new(), Vec::new());
-            for group in items.chunk_by(|a, b| a.0 == b.0) {
-                neg.push(group.iter().map(|g| g.1).sum());
-                pos.push(group.iter().map(|g| g.2).sum());
-            }
-            total += crate::stats::auc::delong_rating_table(&neg, &pos)?.variance;
+        for range in self.fold_ranges() {
+            total += if self.k == 2 {
+                self.fold_variance(&posteriors, range, positive)?
+            } else {
+                self.macro_fold_variance(&posteriors, range)?
+            };
         }
         Some(total / (self.n_folds * self.n_folds) as f64)
+    }
+
+    /// DeLong variance of the AUC of `class` against the rest over the
+    /// entries in `range` (one fold), from their rating table of posteriors.
+    fn fold_variance(&self, posteriors: &[f64], range: Range<usize>, class: usize) -> Option<f64> {
+        let k = self.k;
+        let mut items: Vec<(f64, u64, u64)> = range
+            .map(|e| {
+                let c = &self.counts[e * k..][..k];
+                let pos = c[class] as u64;
+                (
+                    posteriors[e * k + class],
+                    c.iter().sum::<f64>() as u64 - pos,
+                    pos,
+                )
+            })
+            .collect();
+        items.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let (mut neg, mut pos) = (Vec::new(), Vec::new());
+        for group in items.chunk_by(|a, b| a.0 == b.0) {
+            neg.push(group.iter().map(|g| g.1).sum());
+            pos.push(group.iter().map(|g| g.2).sum());
+        }
+        Some(crate::stats::auc::delong_rating_table(&neg, &pos)?.variance)
+    }
+
+    /// Variance of the macro one-vs-rest AUC over the entries in `range`
+    /// with the model fixed: Σ_r φ̄(r)², φ̄ the mean over classes of each
+    /// one-vs-rest AUC's DeLong structural component at row r, as
+    /// [`crate::stats::macro_ovr`] computes it from rows (derivation in
+    /// `stats::multiclass`); the rows of one entry share every component.
+    fn macro_fold_variance(&self, posteriors: &[f64], range: Range<usize>) -> Option<f64> {
+        let k = self.k;
+        let entries: Vec<usize> = range.collect();
+        // Component of class c's AUC at entry i's rows of class c
+        // (`own[i * k + c]`) and at its rows of the other classes (`other`).
+        let (mut own, mut other) = (vec![0.0; entries.len() * k], vec![0.0; entries.len() * k]);
+        for class in 0..k {
+            let count = |i: usize| &self.counts[entries[i] * k..][..k];
+            let positives = |i: usize| count(i)[class];
+            let negatives = |i: usize| count(i).iter().sum::<f64>() - count(i)[class];
+            let (m, n) = (0..entries.len())
+                .fold((0.0, 0.0), |(m, n), i| (m + positives(i), n + negatives(i)));
+            if m < 2.0 || n < 2.0 {
+                return None;
+            }
+            let mut order: Vec<usize> = (0..entries.len()).collect();
+            let score = |i: usize| posteriors[entries[i] * k + class];
+            order.sort_by(|&a, &b| score(a).total_cmp(&score(b)));
+            let (mut below_neg, mut auc) = (0.0, 0.0);
+            let mut placements = vec![(0.0, 0.0); entries.len()];
+            let mut above_pos = m;
+            for group in order.chunk_by(|&a, &b| score(a) == score(b)) {
+                let tie_neg: f64 = group.iter().map(|&i| negatives(i)).sum();
+                let tie_pos: f64 = group.iter().map(|&i| positives(i)).sum();
+                above_pos -= tie_pos;
+                let v10 = (below_neg + 0.5 * tie_neg) / n;
+                let v01 = (above_pos + 0.5 * tie_pos) / m;
+                for &i in group {
+                    placements[i] = (v10, v01);
+                    auc += positives(i) * v10 / m;
+                }
+                below_neg += tie_neg;
+            }
+            for (i, &(v10, v01)) in placements.iter().enumerate() {
+                own[i * k + class] = (v10 - auc) / (m * (m - 1.0)).sqrt();
+                other[i * k + class] = (v01 - auc) / (n * (n - 1.0)).sqrt();
+            }
+        }
+        let mut variance = 0.0;
+        for i in 0..entries.len() {
+            let all_other: f64 = other[i * k..][..k].iter().sum();
+            for class in 0..k {
+                let rows = self.counts[entries[i] * k + class];
+                if rows > 0.0 {
+                    let phi = (all_other - other[i * k + class] + own[i * k + class]) / k as f64;
+                    variance += rows * phi * phi;
+                }
+            }
+        }
+        Some(variance)
     }
 
     /// Held-out information of the surrogate on the table's own counts:
@@ -536,17 +603,33 @@ mod tests {
         (0..5).map(fold_auc).sum::<f64>() / 5.0
     }
 
-    /// (1/25) Σ_f DeLong variance of the held-out fold's scores (DeLong et al. 1988).
-    fn fixed_model_variance_from_rows(column: &EncodedColumn, target: &[u32], folds: &[u8]) -> f64 {
+    /// (1/25) Σ_f variance of the held-out fold's AUC from its row scores:
+    /// DeLong's (DeLong et al. 1988) for two classes, the macro one-vs-rest
+    /// one of [`macro_ovr`] for more.
+    fn fixed_model_variance_from_rows(
+        column: &EncodedColumn,
+        target: &[u32],
+        k: usize,
+        folds: &[u8],
+    ) -> f64 {
         let scores = FrequencySurrogate::default()
-            .out_of_fold(&[column], folded(target, 2, folds))
+            .out_of_fold(&[column], folded(target, k, folds))
             .unwrap();
         (0..5u8)
             .map(|fold| {
                 let rows: Vec<usize> = (0..target.len()).filter(|&r| folds[r] == fold).collect();
-                let s: Vec<f64> = rows.iter().map(|&r| scores.proba[2 * r + 1]).collect();
-                let p: Vec<bool> = rows.iter().map(|&r| target[r] == 1).collect();
-                crate::stats::delong(&s, &p).unwrap().variance
+                if k == 2 {
+                    let s: Vec<f64> = rows.iter().map(|&r| scores.proba[2 * r + 1]).collect();
+                    let p: Vec<bool> = rows.iter().map(|&r| target[r] == 1).collect();
+                    crate::stats::delong(&s, &p).unwrap().variance
+                } else {
+                    let proba: Vec<f64> = rows
+                        .iter()
+                        .flat_map(|&r| scores.proba[r * k..(r + 1) * k].to_vec())
+                        .collect();
+                    let labels: Vec<u32> = rows.iter().map(|&r| target[r]).collect();
+                    macro_ovr(&proba, k, &labels).unwrap().variance
+                }
             })
             .sum::<f64>()
             / 25.0
@@ -555,8 +638,9 @@ mod tests {
     #[test]
     fn table_auc_equals_the_row_by_row_cross_fit() {
         // Same model, two computations: scoring every row and counting its
-        // cells must give the same Mann–Whitney AUC (binary and 3 classes;
-        // singles, a pair, an identifier-like column pooled per fold).
+        // cells must give the same Mann–Whitney AUC and fixed-model variance
+        // (binary and 3 classes; singles, a pair, an identifier-like column
+        // pooled per fold).
         for k in [2u32, 3] {
             let (columns, target) = toy(3_000, k, 21);
             let folds = stratified_folds(&target, k as usize, 5, 0);
@@ -577,11 +661,9 @@ mod tests {
                     "{k} {}",
                     column.name
                 );
-                if k == 2 {
-                    let rows = fixed_model_variance_from_rows(column, &target, &folds);
-                    let table_variance = table.fixed_model_variance(1).unwrap();
-                    assert!((table_variance - rows).abs() < 1e-15, "{}", column.name);
-                }
+                let rows = fixed_model_variance_from_rows(column, &target, k as usize, &folds);
+                let table_variance = table.fixed_model_variance(1).unwrap();
+                assert!((table_variance - rows).abs() < 1e-15, "{}", column.name);
             }
             let pair = CountTable::pair(&columns[0], &columns[1], target_ref, 1.0);
             let from_rows = row_auc(&[&columns[0], &columns[1]], &target, k as usize, &folds);
