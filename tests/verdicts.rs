@@ -1,7 +1,7 @@
 //! Calibration of the fitting-inclusive intervals and the verdicts built on
 //! them, on seeded synthetic data whose truth is known by construction.
 
-use telltale::data::demo::SplitMix64;
+use telltale::data::demo::{SplitMix64, draw};
 use telltale::data::encode::{encode_levels, encode_numeric};
 use telltale::data::{EncodedColumn, EncodedTable, FeatureKind, ProtectedAttribute};
 use telltale::pipeline::{PairMode, ScanOptions, Silent, fitted_auc, scan_table};
@@ -30,18 +30,7 @@ fn categorical(
 ) -> EncodedColumn {
     let labels: Vec<String> = classes
         .iter()
-        .map(|&c| {
-            let u = rng.next_f64();
-            let mut cumulative = 0.0;
-            let level = shares[c as usize]
-                .iter()
-                .position(|s| {
-                    cumulative += s;
-                    u < cumulative
-                })
-                .unwrap_or(shares[c as usize].len() - 1);
-            format!("L{level:02}")
-        })
+        .map(|&c| format!("L{:02}", draw(rng, &shares[c as usize])))
         .collect();
     encode_levels(
         name,

@@ -5,6 +5,7 @@
 //! itself, trained on one sample and scored on another.
 
 use super::{PairMode, ScanOptions, Silent};
+use crate::data::demo::draw;
 use crate::data::encode::{encode_levels, encode_numeric};
 use crate::data::{EncodedColumn, EncodedTable, FeatureKind, ProtectedAttribute};
 use crate::rng::SplitMix64;
@@ -26,18 +27,7 @@ fn categorical(
 ) -> EncodedColumn {
     let labels: Vec<String> = classes
         .iter()
-        .map(|&c| {
-            let (u, shares) = (rng.next_f64(), shares[c as usize]);
-            let mut cumulative = 0.0;
-            let level = shares
-                .iter()
-                .position(|s| {
-                    cumulative += s;
-                    u < cumulative
-                })
-                .unwrap_or(shares.len() - 1);
-            format!("L{level:02}")
-        })
+        .map(|&c| format!("L{:02}", draw(rng, shares[c as usize])))
         .collect();
     encode_levels(
         name,

@@ -153,16 +153,21 @@ mod tests {
         Tally { events, rows }
     }
 
-    #[test]
-    fn uniform_guidelines_example() {
-        // Q&A on the Uniform Guidelines (1979), WORKED-EXAMPLES §10: hiring rates 60 %, 45 %,
-        // 48 %, 51 %; the lowest ratio is 45/60 = 75 %, below four-fifths.
-        let groups = [
+    /// Q&A on the Uniform Guidelines (1979), WORKED-EXAMPLES §10: hiring
+    /// rates 60 %, 45 %, 48 %, 51 % of 100 applicants each.
+    fn guidelines_groups() -> [Tally; 4] {
+        [
             tally(60, 100),
             tally(45, 100),
             tally(48, 100),
             tally(51, 100),
-        ];
+        ]
+    }
+
+    #[test]
+    fn uniform_guidelines_example() {
+        // The lowest ratio is 45/60 = 75 %, below four-fifths.
+        let groups = guidelines_groups();
         let impact = adverse_impact(&groups, 0.95).unwrap();
         assert_eq!((impact.lowest, impact.highest), (1, 0));
         assert!((impact.ratio.unwrap() - 0.75).abs() < 1e-15);
@@ -175,12 +180,7 @@ mod tests {
     fn the_extreme_pair_of_several_groups_has_a_bonferroni_adjusted_fisher_p() {
         // Four groups, m = 6 pairs: the extremes' two-sided Fisher p times 6
         // (Dunn 1961), against the same 2×2 table tested alone.
-        let groups = [
-            tally(60, 100),
-            tally(45, 100),
-            tally(48, 100),
-            tally(51, 100),
-        ];
+        let groups = guidelines_groups();
         let impact = adverse_impact(&groups, 0.95).unwrap();
         let alone = fisher_exact_two_sided([[45, 55], [60, 40]]);
         assert!((impact.fisher_p - (6.0 * alone).min(1.0)).abs() < 1e-12);
