@@ -4,14 +4,14 @@ pandas + scikit-learn code; and the width check. Run through
 scripts/bench-full.sh, which builds telltale and prepares the virtual
 environment.
 
-1. At ROWS x 19 features (default 30,000; the demo's 10 features plus 9 noise
+1. At ROWS x 19 features (default 30,000; the demo's 11 features plus 8 noise
    columns): `telltale scan` with drop-one and the removal plan, next to
    scikit-learn doing the same job on the same file and 5 folds: the singles,
    pairs and whole set of scripts/bench.py, plus drop-one refitting
    HistGradientBoostingClassifier without each feature in turn (the joint
    columns go with their members). The plan has no scikit-learn counterpart
    (it would add more refits on that side).
-2. At WIDE_ROWS x 200 features (default 50,000; 190 noise columns): telltale
+2. At WIDE_ROWS x 200 features (default 50,000; 189 noise columns): telltale
    alone, full job; the target is under 5 minutes on 2 cores.
 
 Prints wall times, telltale's stage times, its refit count and the ratio.
@@ -32,11 +32,6 @@ from sklearn.model_selection import StratifiedKFold
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import bench  # noqa: E402  (shares the scikit-learn side of the benchmark)
-
-
-def demo_csv(exe, rows, noise, path):
-    subprocess.run([exe, "demo", "--rows", str(rows), "--extra-noise", str(noise),
-                    "--write-data", path, "--force"], check=True, capture_output=True)
 
 
 def run_telltale(exe, csv, out_json):
@@ -92,7 +87,7 @@ def main():
     with tempfile.TemporaryDirectory() as work:
         if args.skip != "narrow":
             csv = os.path.join(work, "narrow.csv")
-            demo_csv(args.telltale, args.rows, 9, csv)
+            bench.write_demo(args.telltale, args.rows, 19, csv)
             wall, stages, result = run_telltale(args.telltale, csv, os.path.join(work, "n.json"))
             print(f"running scikit-learn at {args.rows} rows ...", file=sys.stderr, flush=True)
             sk, sk_auc = sklearn_job(csv, result)
@@ -110,7 +105,7 @@ def main():
             print(f"  whole-set AUC telltale {whole['auc']:.4f}, scikit-learn {sk_auc:.4f}")
         if args.skip != "wide":
             csv = os.path.join(work, "wide.csv")
-            demo_csv(args.telltale, args.wide_rows, args.wide_features - 10, csv)
+            bench.write_demo(args.telltale, args.wide_rows, args.wide_features, csv)
             wall, stages, result = run_telltale(args.telltale, csv, os.path.join(work, "w.json"))
             whole = result["whole_set"]
             print(f"\n{args.wide_rows} rows x {args.wide_features} features, full job: "

@@ -276,6 +276,8 @@ pub struct FeatureResult {
     pub surrogate: Option<String>,
     /// Out-of-fold AUC of every surrogate tried (information only).
     pub surrogates: BTreeMap<String, f64>,
+    /// The verdict on the AUC's interval (`scan::verdict::flag_for`): `proxy`,
+    /// `review`, `unresolved` or `clear`.
     pub flag: Flag,
     /// Set when a review policy accepts this feature.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -326,6 +328,7 @@ pub struct FeatureOutcome {
 /// One level (or bin) of a feature: how many rows and how they split by group.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct LevelComposition {
+    /// The level's label (a bin's range for binned numerics).
     pub label: String,
     /// `null` when below `min_cell`.
     pub count: Option<u64>,
@@ -359,6 +362,8 @@ pub struct PairResult {
     /// Upper end of the gain's interval.
     #[serde(default)]
     pub gain_high: Option<f64>,
+    /// Held-out information of the pair surrogate about the attribute, in
+    /// nats (`surrogate::count_table::CountTable::heldout_information`).
     pub heldout_info_nats: Option<f64>,
     /// The verdict on the pair's interval (`scan::flag_for`).
     pub flag: Flag,
@@ -459,6 +464,7 @@ pub struct WholeSet {
 /// A pair of features given to the whole-set attacker as one joint column.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct JointColumn {
+    /// The pair's two features.
     pub features: [String; 2],
     /// Training folds (of `settings.folds`) whose own pair screen chose this pair.
     pub folds: usize,
@@ -468,6 +474,7 @@ pub struct JointColumn {
 /// the same information, so only removing them together shows their weight.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct RedundancyGroup {
+    /// The group's members.
     pub features: Vec<String>,
     /// Smallest pairwise share of information one member carries about the
     /// other: Miller–Madow mutual information over the smaller entropy (0 to 1).
@@ -568,6 +575,7 @@ pub struct ReadingInfo {
 /// How one column was read.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct ColumnReadingInfo {
+    /// The column's name in the file.
     pub name: String,
     /// The kind it was read as; `null` for a protected attribute or a skipped column.
     pub kind: Option<String>,

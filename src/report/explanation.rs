@@ -12,8 +12,11 @@ pub const DOMINATED_SHARE: f64 = 0.9;
 /// Everything about one feature for one protected attribute.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct Explanation {
+    /// The protected attribute (`scan::explain::explain`).
     pub protected: String,
+    /// Its classes, in the order of every share below.
     pub protected_levels: Vec<String>,
+    /// The feature's row of the scan report, as the scan computes it.
     pub feature: FeatureResult,
     /// Every level (or bin), largest first, small cells suppressed.
     pub levels: Vec<LevelComposition>,
@@ -23,12 +26,15 @@ pub struct Explanation {
     pub levels_with_shares: usize,
     /// The feature's pairs with the largest gain.
     pub partners: Vec<PairResult>,
+    /// What the figures mean, in plain words.
     pub paragraph: String,
     /// With an outcome: how much of the feature's outcome value survives
     /// once the protected attribute is known, in plain words.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub outcome_paragraph: Option<String>,
+    /// Smallest count shown; smaller cells are suppressed.
     pub min_cell: u64,
+    /// The caution every report carries.
     pub caution: String,
 }
 

@@ -164,7 +164,9 @@ pub struct ReportDiff {
 pub struct ContextItem {
     /// Dotted JSON path, e.g. `settings.folds`.
     pub field: String,
+    /// Its value in the old report.
     pub old: String,
+    /// Its value in the new report.
     pub new: String,
     /// `old != new`.
     pub changed: bool,
@@ -187,7 +189,9 @@ pub enum AttributeStatus {
 /// Changes for one protected attribute.
 #[derive(Debug, Clone, Serialize, PartialEq)]
 pub struct ProtectedDiff {
+    /// The protected attribute.
     pub protected: String,
+    /// In both reports, or only one.
     pub status: AttributeStatus,
     /// Features only in the new report, in its order.
     pub features_added: Vec<String>,
@@ -210,6 +214,7 @@ pub struct ProtectedDiff {
 /// A feature whose verdict changed.
 #[derive(Debug, Clone, Serialize, PartialEq)]
 pub struct FlagChange {
+    /// The feature.
     pub feature: String,
     /// `None` when the feature is new.
     pub old: Option<Flag>,
@@ -232,7 +237,9 @@ impl FlagChange {
 pub struct AucChange {
     /// Feature name, or `whole set`.
     pub name: String,
+    /// The AUC in the old report.
     pub old_auc: Option<f64>,
+    /// The AUC in the new report.
     pub new_auc: Option<f64>,
     /// New minus old.
     pub change: Option<f64>,
@@ -289,8 +296,11 @@ impl AucChange {
 /// An AUC, its standard error and the surrogate behind it, as read from a report.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct AucPoint {
+    /// The AUC.
     pub auc: Option<f64>,
+    /// Its standard error (stored, or read back from the 95 % interval).
     pub se: Option<f64>,
+    /// The surrogate that produced it (`diff` compares like with like).
     pub surrogate: Option<String>,
 }
 
