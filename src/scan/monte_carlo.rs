@@ -36,8 +36,8 @@ fn categorical(
     )
 }
 
-/// Six noise columns over `classes`: numerics, 6-level and 40-level
-/// categoricals in turn.
+/// Six noise columns over `classes` (any number of classes): numerics,
+/// 6-level and 40-level categoricals in turn.
 fn noise_columns(classes: &[u32], rng: &mut SplitMix64) -> Vec<EncodedColumn> {
     (0..6)
         .map(|i| {
@@ -47,7 +47,8 @@ fn noise_columns(classes: &[u32], rng: &mut SplitMix64) -> Vec<EncodedColumn> {
                 encode_numeric(&name, classes.iter().map(|_| rng.normal()).collect(), 32)
             } else {
                 let uniform = vec![1.0 / f64::from(levels); levels as usize];
-                categorical(&name, classes, &[&uniform, &uniform], rng)
+                let k = classes.iter().max().map_or(1, |&c| c as usize + 1);
+                categorical(&name, classes, &vec![uniform.as_slice(); k], rng)
             }
         })
         .collect()
@@ -199,6 +200,54 @@ fn monte_carlo_whole_set() {
         "added noise column (40 levels) to five noise columns, 30% minority: p < 0.05 in {:.4} \
          ({replicates} data sets), {:.1} s",
         significant as f64 / replicates as f64,
+        started.elapsed().as_secs_f64()
+    );
+}
+
+/// Measurement run, not a check (`scripts/monte-carlo.sh whole_set_multiclass`):
+/// coverage of the whole-set attacker's 95 % interval for a three-class
+/// attribute (50/30/20 %, macro one-vs-rest AUC) on the six noise columns
+/// (truth 0.5); `WHOLE_SET_REPLICATES` data sets (default 400).
+#[test]
+#[ignore = "Monte Carlo measurement; prints rates"]
+fn monte_carlo_whole_set_multiclass() {
+    let replicates = std::env::var("WHOLE_SET_REPLICATES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(400u64);
+    let started = std::time::Instant::now();
+    let results: Vec<(f64, f64, bool)> = (0..replicates)
+        .map(|seed| {
+            let mut rng = SplitMix64::new(70_000 + seed);
+            let codes: Vec<u32> = (0..2_000)
+                .map(|_| draw(&mut rng, &[0.5, 0.3, 0.2]) as u32)
+                .collect();
+            let labels = vec!["a".into(), "b".into(), "c".into()];
+            let group = ProtectedAttribute::from_codes("group".into(), labels, codes, 0);
+            let features = noise_columns(&group.codes, &mut rng);
+            let data = EncodedTable {
+                source_rows: 2_000,
+                features,
+                protected: vec![group],
+                skipped: Vec::new(),
+                missing_tokens: Vec::new(),
+                readings: Vec::new(),
+                outcome: None,
+            };
+            let whole = whole_set_of(&data, seed);
+            let covers = whole.auc_low <= 0.5 && 0.5 <= whole.auc_high;
+            (whole.auc, whole.auc_se, covers)
+        })
+        .collect();
+    let c = crate::stats::fitting::Calibration::of(&results);
+    println!(
+        "three-class noise (50/30/20%): coverage {:.4} ({replicates} data sets), mean AUC {:.4}, \
+         sd of AUC {:.4}, mean se {:.4}, sd/se {:.3}, {:.1} s",
+        c.coverage,
+        c.mean,
+        c.sd,
+        c.mean_se,
+        c.spread_ratio(),
         started.elapsed().as_secs_f64()
     );
 }

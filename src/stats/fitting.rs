@@ -36,8 +36,11 @@
 //! are correlated, which it ignores. The reported variance is the mean of
 //! the two, an empirical calibration, not a theorem: its measured coverage
 //! is 0.96–0.97 for planted signals and 0.93–0.98 for noise, see the README.
-//! Where the fixed-model variance is not available (more than two classes)
-//! the bootstrap variance is used alone, which errs on the wide side.
+//! With more than two classes the fixed-model variance is that of the macro
+//! one-vs-rest AUC, with the covariances between the classes' AUCs (see
+//! `CountTable::fixed_model_variance`); where it cannot be computed (a fold
+//! with fewer than two rows of a class) the bootstrap variance is used
+//! alone, which errs on the wide side.
 //!
 //! A count-based surrogate only sees a row through its (value, fold, class)
 //! cell, whose total weight is Poisson(n_cell) (a sum of independent
