@@ -79,8 +79,13 @@ fn whole_set_table(
         let [a, b] = &PLANTED[p];
         features.push(categorical("planted", &group.codes, &[a, b], &mut rng));
     }
+    table(group, features)
+}
+
+/// An encoded table of `features` with the one protected attribute `group`.
+fn table(group: ProtectedAttribute, features: Vec<EncodedColumn>) -> EncodedTable {
     EncodedTable {
-        source_rows: rows,
+        source_rows: group.codes.len(),
         features,
         protected: vec![group],
         skipped: Vec::new(),
@@ -88,6 +93,39 @@ fn whole_set_table(
         readings: Vec::new(),
         outcome: None,
     }
+}
+
+/// Data sets per design: `WHOLE_SET_REPLICATES`, default 400.
+fn replicates() -> u64 {
+    std::env::var("WHOLE_SET_REPLICATES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(400)
+}
+
+/// Runs the whole-set attacker on `replicates` data sets from `data_of(seed)`
+/// and prints how often its interval covered `truth`, with the sd of the AUC
+/// over the mean reported standard error.
+fn measure(name: &str, truth: f64, replicates: u64, data_of: impl Fn(u64) -> EncodedTable) {
+    let started = std::time::Instant::now();
+    let results: Vec<(f64, f64, bool)> = (0..replicates)
+        .map(|seed| {
+            let whole = whole_set_of(&data_of(seed), seed);
+            let covers = whole.auc_low <= truth && truth <= whole.auc_high;
+            (whole.auc, whole.auc_se, covers)
+        })
+        .collect();
+    let c = crate::stats::fitting::Calibration::of(&results);
+    println!(
+        "{name}: truth {truth:.4}, coverage {:.4} ({replicates} data sets), mean AUC {:.4}, \
+         sd of AUC {:.4}, mean se {:.4}, sd/se {:.3}, {:.1} s",
+        c.coverage,
+        c.mean,
+        c.sd,
+        c.mean_se,
+        c.spread_ratio(),
+        started.elapsed().as_secs_f64()
+    );
 }
 
 /// The whole-set attacker's report on `data`: no pairs (so no joint
@@ -143,10 +181,7 @@ fn planted_truth(planted: usize, trainings: u64) -> f64 {
 #[test]
 #[ignore = "Monte Carlo measurement; prints rates"]
 fn monte_carlo_whole_set() {
-    let replicates = std::env::var("WHOLE_SET_REPLICATES")
-        .ok()
-        .and_then(|v| v.parse().ok())
-        .unwrap_or(400u64);
+    let replicates = replicates();
     let designs = [
         ("noise, 30% minority", 600, None),
         ("noise, 5% minority", 100, None),
@@ -162,27 +197,10 @@ fn monte_carlo_whole_set() {
         ),
     ];
     for (name, minority, planted) in designs {
-        let started = std::time::Instant::now();
         let truth = planted.map_or(0.5, |p| planted_truth(p, 40));
-        let results: Vec<(f64, f64, bool)> = (0..replicates)
-            .map(|seed| {
-                let data = whole_set_table(2_000, minority, planted, 60_000 + seed);
-                let whole = whole_set_of(&data, seed);
-                let covers = whole.auc_low <= truth && truth <= whole.auc_high;
-                (whole.auc, whole.auc_se, covers)
-            })
-            .collect();
-        let c = crate::stats::fitting::Calibration::of(&results);
-        println!(
-            "{name}: truth {truth:.4}, coverage {:.4} ({replicates} data sets), mean AUC {:.4}, \
-             sd of AUC {:.4}, mean se {:.4}, sd/se {:.3}, {:.1} s",
-            c.coverage,
-            c.mean,
-            c.sd,
-            c.mean_se,
-            c.spread_ratio(),
-            started.elapsed().as_secs_f64()
-        );
+        measure(name, truth, replicates, |seed| {
+            whole_set_table(2_000, minority, planted, 60_000 + seed)
+        });
     }
     let started = std::time::Instant::now();
     let significant = (0..replicates)
@@ -211,43 +229,14 @@ fn monte_carlo_whole_set() {
 #[test]
 #[ignore = "Monte Carlo measurement; prints rates"]
 fn monte_carlo_whole_set_multiclass() {
-    let replicates = std::env::var("WHOLE_SET_REPLICATES")
-        .ok()
-        .and_then(|v| v.parse().ok())
-        .unwrap_or(400u64);
-    let started = std::time::Instant::now();
-    let results: Vec<(f64, f64, bool)> = (0..replicates)
-        .map(|seed| {
-            let mut rng = SplitMix64::new(70_000 + seed);
-            let codes: Vec<u32> = (0..2_000)
-                .map(|_| draw(&mut rng, &[0.5, 0.3, 0.2]) as u32)
-                .collect();
-            let labels = vec!["a".into(), "b".into(), "c".into()];
-            let group = ProtectedAttribute::from_codes("group".into(), labels, codes, 0);
-            let features = noise_columns(&group.codes, &mut rng);
-            let data = EncodedTable {
-                source_rows: 2_000,
-                features,
-                protected: vec![group],
-                skipped: Vec::new(),
-                missing_tokens: Vec::new(),
-                readings: Vec::new(),
-                outcome: None,
-            };
-            let whole = whole_set_of(&data, seed);
-            let covers = whole.auc_low <= 0.5 && 0.5 <= whole.auc_high;
-            (whole.auc, whole.auc_se, covers)
-        })
-        .collect();
-    let c = crate::stats::fitting::Calibration::of(&results);
-    println!(
-        "three-class noise (50/30/20%): coverage {:.4} ({replicates} data sets), mean AUC {:.4}, \
-         sd of AUC {:.4}, mean se {:.4}, sd/se {:.3}, {:.1} s",
-        c.coverage,
-        c.mean,
-        c.sd,
-        c.mean_se,
-        c.spread_ratio(),
-        started.elapsed().as_secs_f64()
-    );
+    measure("three-class noise (50/30/20%)", 0.5, replicates(), |seed| {
+        let mut rng = SplitMix64::new(70_000 + seed);
+        let codes: Vec<u32> = (0..2_000)
+            .map(|_| draw(&mut rng, &[0.5, 0.3, 0.2]) as u32)
+            .collect();
+        let labels = vec!["a".into(), "b".into(), "c".into()];
+        let group = ProtectedAttribute::from_codes("group".into(), labels, codes, 0);
+        let features = noise_columns(&group.codes, &mut rng);
+        table(group, features)
+    });
 }
