@@ -52,48 +52,38 @@ impl SplitMix64 {
     /// A Poisson draw with the given mean (0 for a mean that is not positive).
     ///
     /// Means below 10: inversion by sequential search (Devroye 1986,
-    /// "Non-Uniform Random Variate Generation", §X.3.3). Larger means: the
-    /// transformed rejection method PTRS (Hörmann 1993, "The transformed
-    /// rejection method for generating Poisson random variables", Insurance:
-    /// Mathematics and Economics 12(1)), constants as published there.
+    /// "Non-Uniform Random Variate Generation", §X.3.3); for the whole-number
+    /// means a count table passes, the search runs over a cumulative table
+    /// built once with the same recurrence, so it gives the same draw without
+    /// a division per step. Larger means: the transformed rejection method
+    /// PTRS (Hörmann 1993, "The transformed rejection method for generating
+    /// Poisson random variables", Insurance: Mathematics and Economics 12(1)),
+    /// constants as published there.
+    #[inline]
     pub fn poisson(&mut self, mean: f64) -> u64 {
         if mean.is_nan() || mean <= 0.0 {
-            0
-        } else if mean < 10.0 {
-            self.poisson_inversion(mean)
+            return 0;
+        }
+        let whole = mean as usize;
+        if whole < SMALL_MEANS && whole as f64 == mean {
+            let cumulative = &small_mean_tables()[whole];
+            let u = self.next_f64();
+            let last = cumulative.len() - 1;
+            return cumulative.iter().position(|&c| u <= c).unwrap_or(last) as u64;
+        }
+        self.poisson_large_or_fractional(mean)
+    }
+
+    #[inline(never)]
+    fn poisson_large_or_fractional(&mut self, mean: f64) -> u64 {
+        if mean < SMALL_MEANS as f64 {
+            let u = self.next_f64();
+            inversion_search(mean, (-mean).exp(), |k, cumulative, probability| {
+                (u > cumulative && probability > 0.0).then_some(k)
+            })
         } else {
             self.poisson_ptrs(mean)
         }
-    }
-
-    fn poisson_inversion(&mut self, mean: f64) -> u64 {
-        // e^{−n} for the whole-number means a count table passes.
-        const EXP_NEG: [f64; 10] = [
-            1.0,
-            0.367_879_441_171_442_33,
-            0.135_335_283_236_612_7,
-            0.049_787_068_367_863_944,
-            0.018_315_638_888_734_18,
-            0.006_737_946_999_085_467,
-            0.002_478_752_176_666_358_4,
-            0.000_911_881_965_554_516_2,
-            0.000_335_462_627_902_511_84,
-            0.000_123_409_804_086_679_55,
-        ];
-        let mut k = 0u64;
-        let mut probability = if mean.fract() == 0.0 {
-            EXP_NEG[mean as usize]
-        } else {
-            (-mean).exp()
-        };
-        let mut cumulative = probability;
-        let u = self.next_f64();
-        while u > cumulative && probability > 0.0 {
-            k += 1;
-            probability *= mean / k as f64;
-            cumulative += probability;
-        }
-        k
     }
 
     fn poisson_ptrs(&mut self, mean: f64) -> u64 {
@@ -127,6 +117,59 @@ impl SplitMix64 {
             items.swap(i, j);
         }
     }
+}
+
+/// Means below this are drawn by inversion.
+const SMALL_MEANS: usize = 10;
+
+/// e^{−n} for the whole-number means below [`SMALL_MEANS`].
+const EXP_NEG: [f64; SMALL_MEANS] = [
+    1.0,
+    0.367_879_441_171_442_33,
+    0.135_335_283_236_612_7,
+    0.049_787_068_367_863_944,
+    0.018_315_638_888_734_18,
+    0.006_737_946_999_085_467,
+    0.002_478_752_176_666_358_4,
+    0.000_911_881_965_554_516_2,
+    0.000_335_462_627_902_511_84,
+    0.000_123_409_804_086_679_55,
+];
+
+/// Sequential search of the Poisson(`mean`) distribution from P(0) = `p0`:
+/// P(k) = P(k−1)·mean/k, accumulated; `keep_going(k, cumulative, P(k))`
+/// returns `Some(k)` while the search should go on, and the search returns
+/// the k where it stopped.
+fn inversion_search(
+    mean: f64,
+    p0: f64,
+    mut keep_going: impl FnMut(u64, f64, f64) -> Option<u64>,
+) -> u64 {
+    let (mut k, mut probability) = (0u64, p0);
+    let mut cumulative = probability;
+    while keep_going(k, cumulative, probability).is_some() {
+        k += 1;
+        probability *= mean / k as f64;
+        cumulative += probability;
+    }
+    k
+}
+
+/// For each whole-number mean n below [`SMALL_MEANS`], the cumulative
+/// probabilities P(X ≤ k) of the inversion's recurrence from k = 0 until
+/// P(k) underflows to 0 (the search stops there whatever the uniform).
+fn small_mean_tables() -> &'static [Vec<f64>; SMALL_MEANS] {
+    static TABLES: std::sync::OnceLock<[Vec<f64>; SMALL_MEANS]> = std::sync::OnceLock::new();
+    TABLES.get_or_init(|| {
+        std::array::from_fn(|n| {
+            let mut table = Vec::new();
+            inversion_search(n as f64, EXP_NEG[n], |k, cumulative, probability| {
+                table.push(cumulative);
+                (probability > 0.0).then_some(k)
+            });
+            table
+        })
+    })
 }
 
 #[cfg(test)]
@@ -163,6 +206,21 @@ mod tests {
             assert!((v / mean - 1.0).abs() < 0.06, "{mean}: variance {v}");
         }
         assert_eq!(SplitMix64::new(1).poisson(0.0), 0);
+    }
+
+    #[test]
+    fn table_draws_equal_the_sequential_search() {
+        // The whole-number means' tables must give the draw the inversion's
+        // own recurrence gives from the same uniform.
+        for (n, &p0) in EXP_NEG.iter().enumerate().skip(1) {
+            let (mut table, mut search) = (SplitMix64::new(5), SplitMix64::new(5));
+            for _ in 0..5_000 {
+                let u = search.next_f64();
+                let expected =
+                    inversion_search(n as f64, p0, |k, c, p| (u > c && p > 0.0).then_some(k));
+                assert_eq!(table.poisson(n as f64), expected, "mean {n}");
+            }
+        }
     }
 
     #[test]

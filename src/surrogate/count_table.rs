@@ -9,7 +9,7 @@
 //! what makes the bootstrap of [`crate::stats::fitting`] cheap.
 
 use super::FoldedTarget;
-use super::frequency::{DENSE_PAIR_CELLS, Scratch, posterior};
+use super::frequency::{DENSE_PAIR_CELLS, pair_posterior, smooth_into};
 use crate::data::EncodedColumn;
 use crate::keys::KeyIndex;
 use crate::stats::auc::auc_from_weighted_scores;
@@ -292,8 +292,11 @@ impl CountTable {
             for &class in &classes {
                 items.clear();
                 let pairs = fold_counts.clone().zip(fold_posteriors.clone());
+                // Entries a bootstrap replicate left empty weigh nothing.
                 items.extend(
-                    pairs.map(|(c, p)| (p[class], c.iter().sum::<f64>() - c[class], c[class])),
+                    pairs
+                        .filter(|(c, _)| c.iter().any(|&n| n > 0.0))
+                        .map(|(c, p)| (p[class], c.iter().sum::<f64>() - c[class], c[class])),
                 );
                 match auc_from_weighted_scores(&mut items) {
                     Some(auc) => total += auc,
@@ -467,11 +470,11 @@ impl CountTable {
             add(&mut cell_totals[cell as usize * k..][..k], c);
         }
         let priors = training_priors(&fold_totals, f, k);
-        let singles = self.pair.as_ref().map(|(codes_of, levels)| {
-            [0, 1].map(|side| SideCounts::new(self, counts, codes_of, levels[side], side))
+        let sides = self.pair.as_ref().map(|(codes_of, levels)| {
+            [0, 1].map(|side| SideShares::new(self, counts, codes_of, levels[side], side, &priors))
         });
-        let mut scratch = Scratch::new(k);
-        let mut buffers = [vec![0.0; k], vec![0.0; k], vec![0.0; k]];
+        let mut back_off = vec![0.0; k];
+        let mut own = vec![0.0; k];
         let mut out = vec![0.0; self.entries.len() * k];
         for ((&(cell, fold), c), p) in self
             .entries
@@ -479,45 +482,38 @@ impl CountTable {
             .zip(counts.chunks_exact(k))
             .zip(out.chunks_exact_mut(k))
         {
-            let [own, left, right] = &mut buffers;
-            minus(&cell_totals[cell as usize * k..][..k], c, own);
+            minus(&cell_totals[cell as usize * k..][..k], c, &mut own);
             let prior = &priors[usize::from(fold) * k..][..k];
-            match (&singles, &self.pair) {
+            match (&sides, &self.pair) {
                 (Some([l, r]), Some((codes_of, _))) => {
                     let [a, b] = codes_of[cell as usize];
-                    l.training(a, fold, left);
-                    r.training(b, fold, right);
-                    posterior(
-                        [left, right],
-                        Some(own),
-                        prior,
-                        self.smoothing,
-                        &mut scratch,
-                        p,
-                    );
+                    let shares = [l.of(a, fold), r.of(b, fold)];
+                    pair_posterior(shares, &own, prior, self.smoothing, &mut back_off, p);
                 }
-                _ => posterior([own, own], None, prior, self.smoothing, &mut scratch, p),
+                _ => smooth_into(&own, prior, self.smoothing, p),
             }
         }
         out
     }
 }
 
-/// Class counts of one column of a pair per (code, fold) and per code.
-struct SideCounts {
+/// One column of a pair: the smoothed class shares of each of its codes
+/// when each fold is held out, `levels × folds × k`, computed once per
+/// count vector and shared by every cell holding the code.
+struct SideShares {
     k: usize,
     n_folds: usize,
-    per_fold: Vec<f64>,
-    total: Vec<f64>,
+    shares: Vec<f64>,
 }
 
-impl SideCounts {
+impl SideShares {
     fn new(
         table: &CountTable,
         counts: &[f64],
         codes_of: &[[u32; 2]],
         levels: usize,
         side: usize,
+        priors: &[f64],
     ) -> Self {
         let (f, k) = (table.n_folds, table.k);
         let mut per_fold = vec![0.0; levels * f * k];
@@ -527,19 +523,28 @@ impl SideCounts {
             add(&mut per_fold[(code * f + usize::from(fold)) * k..][..k], c);
             add(&mut total[code * k..][..k], c);
         }
+        let mut training = vec![0.0; k];
+        let mut shares = vec![0.0; levels * f * k];
+        for (i, out) in shares.chunks_exact_mut(k).enumerate() {
+            let (code, fold) = (i / f, i % f);
+            minus(
+                &total[code * k..][..k],
+                &per_fold[i * k..][..k],
+                &mut training,
+            );
+            smooth_into(&training, &priors[fold * k..][..k], table.smoothing, out);
+        }
         Self {
             k,
             n_folds: f,
-            per_fold,
-            total,
+            shares,
         }
     }
 
-    /// Training counts of `code` when `fold` is held out.
-    fn training(&self, code: u32, fold: u8, out: &mut [f64]) {
-        let (k, code) = (self.k, code as usize);
-        let held = &self.per_fold[(code * self.n_folds + usize::from(fold)) * k..][..k];
-        minus(&self.total[code * k..][..k], held, out);
+    /// Smoothed shares of `code` when `fold` is held out.
+    fn of(&self, code: u32, fold: u8) -> &[f64] {
+        let at = (code as usize * self.n_folds + usize::from(fold)) * self.k;
+        &self.shares[at..at + self.k]
     }
 }
 

@@ -105,11 +105,27 @@ pub(super) fn posterior(
     };
     smooth_into(singles[0], prior, m, &mut scratch.left);
     smooth_into(singles[1], prior, m, &mut scratch.right);
-    combine_into(&scratch.left, &scratch.right, prior, &mut scratch.back_off);
+    let shares = [scratch.left.as_slice(), scratch.right.as_slice()];
+    pair_posterior(shares, cell, prior, m, &mut scratch.back_off, out);
+}
+
+/// A pair cell's posterior from its two members' smoothed shares `shares`
+/// and its own training counts `cell`: the cell smoothed toward the
+/// naive-Bayes combination `back_off` of the members, or that combination
+/// when the cell was never seen in training.
+pub(super) fn pair_posterior(
+    shares: [&[f64]; 2],
+    cell: &[f64],
+    prior: &[f64],
+    m: f64,
+    back_off: &mut [f64],
+    out: &mut [f64],
+) {
+    combine_into(shares[0], shares[1], prior, back_off);
     if cell.iter().sum::<f64>() > 0.0 {
-        smooth_into(cell, &scratch.back_off, m, out);
+        smooth_into(cell, back_off, m, out);
     } else {
-        out.copy_from_slice(&scratch.back_off);
+        out.copy_from_slice(back_off);
     }
 }
 
