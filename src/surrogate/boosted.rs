@@ -247,8 +247,8 @@ impl Sums {
     }
 }
 
-/// Sums per bin of one feature; 256 cells so any `u8` bin indexes it.
-type Histogram = [Sums; 256];
+/// Sums per bin of one feature: its value bins, then its missing bin.
+type Histogram = Vec<Sums>;
 
 /// How a split sends rows left.
 #[derive(Debug, Clone, PartialEq)]
@@ -455,7 +455,7 @@ impl TreeGrower<'_> {
         (0..self.binned.bins.len())
             .into_par_iter()
             .map(|f| {
-                let mut hist = [Sums::default(); 256];
+                let mut hist = vec![Sums::default(); self.binned.width(f)];
                 let bins = &self.binned.bins[f];
                 for (&r, &[g, h]) in rows.iter().zip(&gradients) {
                     let cell = &mut hist[usize::from(bins[r as usize])];
@@ -480,7 +480,6 @@ impl TreeGrower<'_> {
             .par_iter()
             .enumerate()
             .map(|(f, hist)| {
-                let hist = &hist[..self.binned.width(f)];
                 if self.binned.categorical[f] {
                     context.categorical(f, hist)
                 } else {
@@ -553,7 +552,7 @@ impl TreeGrower<'_> {
             .hist
             .iter()
             .zip(&small)
-            .map(|(p, s)| std::array::from_fn(|b| p[b].minus(s[b])))
+            .map(|(p, s)| p.iter().zip(s).map(|(p, s)| p.minus(*s)).collect())
             .collect();
         let (left_hist, right_hist) = if left_smaller {
             (small, large)
