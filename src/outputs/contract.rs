@@ -104,7 +104,7 @@ pub struct StratumAuc {
     pub outcome: u8,
     /// Rows with this outcome.
     pub rows: u64,
-    /// `null` when not estimable in this stratum (a class with fewer than two rows).
+    /// `null` when not estimable in this stratum (a class with fewer than two rows, four with three classes or more).
     pub score_auc: Option<ScoreAuc>,
 }
 

@@ -164,7 +164,7 @@ fn proxy_section(result: &OutputsResult, min_cell: u64) -> Section<'static> {
     let mut rows = vec![(
         format!("score AUC for {}", result.protected),
         Cell::plain(result.score_auc.map_or_else(
-            || "not estimable (a class has fewer than two rows)".to_owned(),
+            || "not estimable (a class has too few rows: two are needed, four with three classes or more)".to_owned(),
             |a| auc_interval(Some(a.auc), Some(a.auc_low), Some(a.auc_high)),
         )),
     )];

@@ -321,7 +321,7 @@ fn headline(result: &OutputsResult) -> String {
             )
         }
         None => format!(
-            "The score's AUC for `{}` is not estimable (a class has fewer than two rows)",
+            "The score's AUC for `{}` is not estimable (a class has too few rows: two are needed, four with three classes or more)",
             result.protected
         ),
     };
