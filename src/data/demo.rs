@@ -21,7 +21,7 @@
 /// The generator behind the demo's draws, public so that simulations can
 /// reproduce them.
 pub use crate::rng::SplitMix64;
-use polars::prelude::{Column, DataFrame, NamedFrom, Series};
+use polars::prelude::{Column, DataFrame, DataType, NamedFrom, Series};
 
 /// Share of applicants in the minority community (Valic).
 pub const MINORITY_SHARE: f64 = 0.3;
@@ -121,7 +121,7 @@ pub fn generate(spec: DemoSpec) -> DemoData {
     let mut commute = Vec::with_capacity(n);
     let mut rate = Vec::with_capacity(n);
     let mut channel = Vec::with_capacity(n);
-    let mut months: Vec<Option<f64>> = Vec::with_capacity(n);
+    let mut months: Vec<Option<i64>> = Vec::with_capacity(n);
     let mut log_odds = Vec::with_capacity(n);
     for _ in 0..n {
         let g = usize::from(rng.next_f64() < MINORITY_SHARE);
@@ -131,7 +131,7 @@ pub fn generate(spec: DemoSpec) -> DemoData {
         let fixed = rng.next_f64() < 0.5;
         let disagree = rng.next_f64() < DISAGREE[1 - g];
         let missing = rng.next_f64() < MISSING_ADDRESS[g];
-        let stay = 1.0 + rng.below(240) as f64;
+        let stay = 1 + rng.below(240) as i64;
         community.push(if g == 1 { "Valic" } else { "Osmeric" });
         branch.push(area_name(area));
         commute.push((km * 10.0).round() / 10.0);
@@ -217,10 +217,11 @@ fn text_column<S: AsRef<str>>(name: &str, values: &[S]) -> Column {
 }
 
 fn noise_columns(rng: &mut SplitMix64, n: usize, extra: usize) -> Vec<Column> {
-    let amount: Vec<f64> = (0..n)
-        .map(|_| (9.0 + 0.6 * rng.normal()).exp().round())
+    // Whole numbers are stored as integers, so the CSV reads `186`, not `186.0`.
+    let amount: Vec<i64> = (0..n)
+        .map(|_| (9.0 + 0.6 * rng.normal()).exp().round() as i64)
         .collect();
-    let term: Vec<f64> = (0..n).map(|_| 12.0 * (1 + rng.below(5)) as f64).collect();
+    let term: Vec<i64> = (0..n).map(|_| 12 * (1 + rng.below(5)) as i64).collect();
     let guarantor: Vec<&str> = (0..n)
         .map(|_| if rng.next_f64() < 0.2 { "yes" } else { "no" })
         .collect();
@@ -320,6 +321,7 @@ pub fn with_scores(mut data: DemoData, seed: u64) -> DemoData {
         frame
             .column(name)
             .ok()
+            .and_then(|c| c.cast(&DataType::Float64).ok())
             .and_then(|c| c.f64().ok().map(|s| s.iter().collect()))
             .unwrap_or_default()
     };
