@@ -154,21 +154,26 @@ const SHIFTS: [(f64, f64); 2] = [(0.0, 0.5), (0.741_564_0, 0.7)];
 
 #[test]
 fn score_auc_interval_covers_the_true_auc() {
+    score_auc_coverage(2, &SHIFTS, 41);
+}
+
+/// Coverage of the score AUC's interval with `groups` equal groups, group g
+/// scoring N(g·shift, 1), for each (shift, truth) of `designs` and group size.
+fn score_auc_coverage(groups: u32, designs: &[(f64, f64)], seed: u64) {
     let mut failures = Vec::new();
-    for (shift, truth) in SHIFTS {
+    for &(shift, truth) in designs {
         for n in SIZES {
-            let value = coverage(41 + n, |rng| {
-                let rows = 2 * n as usize;
-                let classes: Vec<u32> = (0..rows).map(|i| u32::from(i % 2 == 1)).collect();
+            let value = coverage(seed + n, |rng| {
+                let classes: Vec<u32> = (0..groups * n as u32).map(|i| i % groups).collect();
                 let score: Vec<f64> = classes
                     .iter()
                     .map(|&c| rng.normal() + shift * f64::from(c))
                     .collect();
-                let auc = separation(&score, &classes, 2).auc?;
+                let auc = separation(&score, &classes, groups as usize).auc?;
                 Some(auc.auc_low <= truth && truth <= auc.auc_high)
             });
             check(
-                &format!("score AUC {truth}, n = {n} per group"),
+                &format!("{groups} groups, score AUC {truth:.4}, n = {n} per group"),
                 value,
                 &mut failures,
             );
@@ -200,27 +205,8 @@ fn three_group_truth(shift: f64) -> f64 {
 /// (the reason for the split halves of `outputs::separation`).
 #[test]
 fn score_auc_interval_covers_the_true_auc_with_three_groups() {
-    let mut failures = Vec::new();
-    for shift in [0.0, 0.741_564_0] {
-        let truth = three_group_truth(shift);
-        for n in SIZES {
-            let value = coverage(43 + n, |rng| {
-                let classes: Vec<u32> = (0..3 * n as u32).map(|i| i % 3).collect();
-                let score: Vec<f64> = classes
-                    .iter()
-                    .map(|&c| rng.normal() + shift * f64::from(c))
-                    .collect();
-                let auc = separation(&score, &classes, 3).auc?;
-                Some(auc.auc_low <= truth && truth <= auc.auc_high)
-            });
-            check(
-                &format!("three groups, score AUC {truth:.4}, n = {n} per group"),
-                value,
-                &mut failures,
-            );
-        }
-    }
-    assert!(failures.is_empty(), "{failures:#?}");
+    let designs = [0.0, 0.741_564_0].map(|shift| (shift, three_group_truth(shift)));
+    score_auc_coverage(3, &designs, 43);
 }
 
 /// A transform of a normal score (`None`: the normal score itself).
