@@ -204,8 +204,8 @@ fn proxy_section(result: &OutputsResult, min_cell: u64) -> Section<'static> {
             "Score AUC: how well the score alone tells the classes apart (0.5: not at all, \
              1: completely), with its 95% DeLong interval. With three classes or more: \
              macro one-vs-rest, each half of the rows turned by the other half's direction \
-             and measured on its own, the interval as wide as the two halves allow \
-             (conservative); near 0.5 it may fall below 0.5.",
+             and measured on its own, the interval widened for the halves' dependence and \
+             kept within [0.5, 1] (0.5: no separation shown).",
         ),
     ];
     if let Some(chart) = distribution_chart(result) {

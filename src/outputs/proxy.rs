@@ -4,7 +4,8 @@
 use super::contract::{Carrier, ScoreAuc, StratumAuc};
 use crate::data::{EncodedColumn, FeatureKind};
 use crate::rng::SplitMix64;
-use crate::stats::{AucEstimate, Contingency, auc_from_scores, cramers_v, macro_ovr};
+use crate::stats::special::Z_975;
+use crate::stats::{AucEstimate, Contingency, auc_from_scores, cramers_v, delong, macro_ovr};
 
 /// The score's separation of the classes and each class's raw AUC against the rest.
 pub struct Separation {
@@ -32,30 +33,24 @@ pub struct Separation {
 /// by the other half's AUCs and measured on its own rows (sample splitting
 /// against selection bias; Cox 1975, "A note on data-splitting for the
 /// evaluation of significance levels", Biometrika 62), and the estimate is
-/// the mean of the two halves' macro AUCs. The two are not independent (each
-/// half's orientation follows its own AUCs, which the other half's estimate
-/// then uses): with the variance (V₁ + V₂)/4 of independent halves the
-/// interval still held ½ in only 87 % of data sets, the sd of the estimate
-/// being 1.31 times that standard error. So the standard error is
-/// (se₁ + se₂)/2, the largest the mean's can be whatever the two halves'
-/// correlation (Cauchy–Schwarz): valid, and up to √2 wider than needed when
-/// every class's orientation is beyond doubt.
-/// `None` when a class has fewer than two rows (four with three classes or
-/// more: two in each half).
+/// the mean of the two halves' macro AUCs, at least ½ (the estimand is). Its
+/// interval ([`split_interval`]) allows for the two halves' dependence
+/// through the orientation and for the downward pull of a direction the
+/// other half misreads. `None` when a class has fewer than two rows (four
+/// with three classes or more: two in each half).
 #[must_use]
 pub fn separation(score: &[f64], classes: &[u32], k: usize) -> Separation {
     let per_class = class_aucs(score, classes, k);
-    let estimate = if k <= 2 {
-        oriented_macro(score, classes, k, &orientation(&per_class))
+    let auc = if k <= 2 {
+        oriented_macro(score, classes, k, &orientation(&per_class)).map(|estimate| ScoreAuc {
+            auc: estimate.auc,
+            auc_low: estimate.low,
+            auc_high: estimate.high,
+            auc_se: estimate.se,
+        })
     } else {
         split_oriented_macro(score, classes, k)
     };
-    let auc = estimate.map(|estimate| ScoreAuc {
-        auc: estimate.auc,
-        auc_low: estimate.low,
-        auc_high: estimate.high,
-        auc_se: estimate.se,
-    });
     Separation { auc, per_class }
 }
 
@@ -89,9 +84,28 @@ fn oriented_macro(score: &[f64], classes: &[u32], k: usize, signs: &[f64]) -> Op
 /// Seed of the split into halves, fixed so that a report is reproducible.
 const HALVES_SEED: u64 = 0x005E_ED0F_4A17;
 
+/// A class's direction counts as settled when both halves agree on it and
+/// its one-vs-rest AUC is at least this many DeLong standard errors from ½
+/// in each half.
+const SETTLED_Z: f64 = 3.0;
+
+/// Most a class whose direction the other half may misread pulls its
+/// oriented AUC down, in units of its half-sample standard error σ: the
+/// expected pull is 2|A − ½|·Φ(−|A − ½|/σ) (the direction is wrong with
+/// probability Φ(−|A − ½|/σ), and then the class scores 1 − A instead of
+/// A), largest at |A − ½| = 0.75σ, where it is 0.34σ.
+const MISREAD_PULL: f64 = 0.34;
+
+/// One half's measures: its classes' own AUCs against the rest with their
+/// DeLong standard errors, and its macro AUC oriented by the other half.
+struct Half {
+    classes: Vec<AucEstimate>,
+    oriented: AucEstimate,
+}
+
 /// Each half oriented by the other and measured on its own rows; the mean
-/// of the two estimates (see [`separation`]).
-fn split_oriented_macro(score: &[f64], classes: &[u32], k: usize) -> Option<AucEstimate> {
+/// of the two estimates (see [`separation`]) with [`split_interval`].
+fn split_oriented_macro(score: &[f64], classes: &[u32], k: usize) -> Option<ScoreAuc> {
     let halves = stratified_halves(classes, k);
     let part = |h: usize| -> (Vec<f64>, Vec<u32>) {
         halves[h]
@@ -100,19 +114,73 @@ fn split_oriented_macro(score: &[f64], classes: &[u32], k: usize) -> Option<AucE
             .unzip()
     };
     let parts = [part(0), part(1)];
-    let signs = parts
-        .each_ref()
-        .map(|(s, c)| orientation(&class_aucs(s, c, k)));
-    let [first, second] = [0, 1].map(|h| {
-        let (s, c) = &parts[h];
-        oriented_macro(s, c, k, &signs[1 - h])
-    });
-    let (first, second) = (first?, second?);
-    let se = (first.se + second.se) / 2.0;
-    Some(AucEstimate::from_variance(
-        (first.auc + second.auc) / 2.0,
-        se * se,
-    ))
+    let own: Vec<Vec<AucEstimate>> = parts
+        .iter()
+        .map(|(s, c)| {
+            (0..k)
+                .map(|class| {
+                    let member: Vec<bool> = c.iter().map(|&a| a as usize == class).collect();
+                    delong(s, &member)
+                })
+                .collect::<Option<_>>()
+        })
+        .collect::<Option<_>>()?;
+    let signs: Vec<Vec<f64>> = own
+        .iter()
+        .map(|aucs| orientation(&aucs.iter().map(|a| Some(a.auc)).collect::<Vec<_>>()))
+        .collect();
+    let mut measured = Vec::with_capacity(2);
+    for (h, ((s, c), aucs)) in parts.iter().zip(own).enumerate() {
+        measured.push(Half {
+            oriented: oriented_macro(s, c, k, &signs[1 - h])?,
+            classes: aucs,
+        });
+    }
+    Some(split_interval(&measured, &signs))
+}
+
+/// The split estimate's interval. When every class's direction is settled
+/// ([`SETTLED_Z`]), the directions are fixed and the halves independent:
+/// se = √((V₁ + V₂)/4). Otherwise each half's DeLong variance misses the
+/// direction's own variation and the halves move together, so se is the
+/// mean of the halves' (the Cauchy–Schwarz bound for two correlated
+/// halves), and the upper limit is raised by the most that the unsettled
+/// classes can pull the estimate down, (1/K)·Σ [`MISREAD_PULL`]·σ_c. The
+/// interval is kept within [½, 1], where the estimand lies. Settling rule
+/// and allowance from an independent review's Monte Carlo over 30 designs
+/// (3 to 6 classes, 10 to 1,000 rows per class, equal and unequal shares,
+/// no, weak and strong signal): coverage 0.942–0.976 where the plain mean
+/// of the halves' standard errors gave 0.870–0.928 on weak signals, and
+/// 0.946–0.961 instead of 0.992–0.995 (intervals 0.71–0.74 as wide) on
+/// strong ones.
+fn split_interval(halves: &[Half], signs: &[Vec<f64>]) -> ScoreAuc {
+    let k = signs[0].len();
+    let settled: Vec<bool> = (0..k)
+        .map(|c| {
+            signs[0][c] == signs[1][c]
+                && halves.iter().all(|h| {
+                    let a = h.classes[c];
+                    (a.auc - 0.5).abs() >= SETTLED_Z * a.se
+                })
+        })
+        .collect();
+    let estimate = halves.iter().map(|h| h.oriented.auc).sum::<f64>() / 2.0;
+    let se = if settled.iter().all(|&s| s) {
+        (halves.iter().map(|h| h.oriented.variance).sum::<f64>() / 4.0).sqrt()
+    } else {
+        halves.iter().map(|h| h.oriented.se).sum::<f64>() / 2.0
+    };
+    let pull: f64 = (0..k)
+        .filter(|&c| !settled[c])
+        .map(|c| MISREAD_PULL * halves.iter().map(|h| h.classes[c].se).sum::<f64>() / 2.0)
+        .sum::<f64>()
+        / k as f64;
+    ScoreAuc {
+        auc: estimate.max(0.5),
+        auc_low: (estimate - Z_975 * se).clamp(0.5, 1.0),
+        auc_high: (estimate + Z_975 * se + pull).clamp(0.5, 1.0),
+        auc_se: se,
+    }
 }
 
 /// The rows split in two, each class's rows shuffled with [`HALVES_SEED`]
