@@ -291,34 +291,48 @@ fn band_label(low: f64, high: f64) -> String {
 }
 
 fn distribution_section(bands: &[DistributionBand], min_cell: u64) -> Section<'static> {
-    let mut columns = vec![Column::text("score band")];
-    columns.extend(
-        bands[0]
-            .groups
+    let table = band_table(
+        "distribution",
+        bands
             .iter()
-            .map(|g| Column::numeric(format!("{}: share (rows)", g.label))),
+            .map(|b| (b.score_low, b.score_high, b.groups.as_slice())),
+        |g| format!("{}: share (rows)", g.label),
+        |g| match (g.share, g.count) {
+            (Some(share), Some(count)) => Cell::plain(format!("{} ({count})", percent(share))),
+            _ => suppressed_cell(min_cell),
+        },
     );
-    let rows = bands
-        .iter()
-        .map(|band| {
-            let mut cells = vec![Cell::plain(band_label(band.score_low, band.score_high))];
-            cells.extend(band.groups.iter().map(|g| match (g.share, g.count) {
-                (Some(share), Some(count)) => Cell::plain(format!("{} ({count})", percent(share))),
-                _ => suppressed_cell(min_cell),
-            }));
-            Row::from(cells)
-        })
-        .collect();
-    let table = Table {
-        name: "distribution",
-        columns,
-        rows,
-    };
     Section::new(
         "Score distribution by group",
         vec![Block::Table(table), footnote(min_cell)],
     )
     .full_only()
+}
+
+/// One row per score band (`low`, `high`, its groups), one column per group
+/// as the first band lists them: `column` heads a group's column, `cell`
+/// fills it.
+fn band_table<'a, G: 'a>(
+    name: &'static str,
+    bands: impl Iterator<Item = (f64, f64, &'a [G])>,
+    column: impl Fn(&G) -> String,
+    cell: impl Fn(&G) -> Cell,
+) -> Table {
+    let mut columns = vec![Column::text("score band")];
+    let mut rows = Vec::new();
+    for (low, high, groups) in bands {
+        if rows.is_empty() {
+            columns.extend(groups.iter().map(|g| Column::numeric(column(g))));
+        }
+        let mut cells = vec![Cell::plain(band_label(low, high))];
+        cells.extend(groups.iter().map(&cell));
+        rows.push(Row::from(cells));
+    }
+    Table {
+        name,
+        columns,
+        rows,
+    }
 }
 
 fn rates_section(result: &OutputsResult, min_cell: u64) -> Section<'static> {
@@ -556,32 +570,23 @@ fn gap_text(gap: Option<&RateGap>) -> String {
 
 fn calibration_section(result: &OutputsResult, min_cell: u64) -> Option<Section<'static>> {
     let bands = &result.calibration;
-    let first = bands.first()?;
-    let mut columns = vec![Column::text("score band")];
-    columns.extend(
-        first
-            .groups
+    if bands.is_empty() {
+        return None;
+    }
+    let table = band_table(
+        "calibration",
+        bands
             .iter()
-            .map(|g| Column::numeric(format!("{}: outcome rate [95%] (rows)", g.label))),
+            .map(|b| (b.score_low, b.score_high, b.groups.as_slice())),
+        |g| format!("{}: outcome rate [95%] (rows)", g.label),
+        |g| match g.count {
+            Some(n) => Cell::plain(format!("{} ({n})", rate_text(g.outcome_rate.as_ref()))),
+            None => suppressed_cell(min_cell),
+        },
     );
-    let rows = bands
-        .iter()
-        .map(|band| {
-            let mut cells = vec![Cell::plain(band_label(band.score_low, band.score_high))];
-            cells.extend(band.groups.iter().map(|cell| match cell.count {
-                Some(n) => Cell::plain(format!("{} ({n})", rate_text(cell.outcome_rate.as_ref()))),
-                None => suppressed_cell(min_cell),
-            }));
-            Row::from(cells)
-        })
-        .collect();
     let blocks = vec![
         calibration_chart(result, bands),
-        Block::Table(Table {
-            name: "calibration",
-            columns,
-            rows,
-        }),
+        Block::Table(table),
         footnote(min_cell),
         Block::paragraph(
             Role::Meta,
