@@ -157,8 +157,21 @@ pub fn plan_columns(
     })
 }
 
-/// ", did you mean `a` or `b`?" for the closest names by edit distance.
+/// ", did you mean `a` or `b`?" for the closest names by edit distance; or,
+/// when the header was read as one column that holds the name between
+/// separators, the `--delimiter` that would split it.
 fn suggest(name: &str, columns: &[String]) -> String {
+    if let Some(separator) = other_separator(name, columns) {
+        let shown = if separator == '\t' {
+            "\\t".to_string()
+        } else {
+            separator.to_string()
+        };
+        return format!(
+            " (the header is one column `{}`: is the field separator `{shown}`? pass --delimiter '{shown}')",
+            columns[0]
+        );
+    }
     let lower = name.to_lowercase();
     let mut scored: Vec<(usize, &String)> = columns
         .iter()
@@ -176,6 +189,14 @@ fn suggest(name: &str, columns: &[String]) -> String {
     } else {
         format!("; did you mean {}?", names.join(" or "))
     }
+}
+
+/// The separator a one-column header holds when splitting it there yields `name`.
+fn other_separator(name: &str, columns: &[String]) -> Option<char> {
+    let [only] = columns else { return None };
+    [';', '\t', '|', ',']
+        .into_iter()
+        .find(|&c| only.split(c).count() > 1 && only.split(c).any(|part| part.trim() == name))
 }
 
 fn preview(columns: &[String]) -> String {
@@ -829,6 +850,10 @@ mod tests {
         ];
         assert!(suggest("regoin", &columns).contains("`region`"));
         assert!(suggest("zzzzzzzz", &columns).contains("columns are"));
+        let one = vec!["sex;region;income".to_string()];
+        assert!(suggest("region", &one).contains("--delimiter ';'"));
+        let tabbed = vec!["sex\tregion".to_string()];
+        assert!(suggest("sex", &tabbed).contains("--delimiter '\\t'"));
     }
 
     #[test]
