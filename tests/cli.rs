@@ -942,12 +942,12 @@ fn decision_that_is_not_zero_or_one_is_an_input_error() {
         "scored.csv",
         &scored_csv(|i, f| {
             if i == 3 {
-                f[2] = "yes".into();
+                f[2] = "maybe".into();
             }
         }),
     );
     let (output, _) = run_outputs_json(&path, &["--decision", "decision"]);
-    assert_input_error(&output, &["scored.csv", "`decision`", "0 or 1", "`yes`"]);
+    assert_input_error(&output, &["scored.csv", "`decision`", "0 or 1", "`maybe`"]);
     let path = write(
         &dir,
         "outcome.csv",

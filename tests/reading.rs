@@ -339,3 +339,87 @@ fn no_usable_feature_is_an_input_error() {
     ]);
     assert_input_error(&output, &["flat", "--numeric", "--categorical"]);
 }
+
+/// A Parquet file with native types: text, booleans, integers with nulls and
+/// floats, as a pandas or polars user writes them.
+fn typed_parquet(name: &str) -> (String, usize) {
+    use polars::prelude::*;
+    let rows = 400;
+    let (mut rng, is_b) = draw_classes(rows, 0.4, 11);
+    let sex: Vec<&str> = is_b.iter().map(|&b| if b { "F" } else { "M" }).collect();
+    // A member flag that leans towards class F, so it is a real feature.
+    let member: Vec<bool> = is_b
+        .iter()
+        .map(|&b| rng.next_f64() < if b { 0.7 } else { 0.3 })
+        .collect();
+    let amount: Vec<Option<i64>> = (0..rows)
+        .map(|i| (i % 9 != 0).then(|| 1000 + (rng.next_f64() * 5000.0) as i64))
+        .collect();
+    let score: Vec<f64> = (0..rows).map(|_| rng.next_f64()).collect();
+    let approved: Vec<bool> = score.iter().map(|&s| s >= 0.5).collect();
+    let repaid: Vec<i64> = (0..rows).map(|_| i64::from(rng.next_f64() < 0.6)).collect();
+    let selected = approved.iter().filter(|&&a| a).count();
+    let mut frame = df!(
+        "sex" => sex,
+        "member" => member,
+        "amount" => amount,
+        "score" => score,
+        "approved" => approved,
+        "repaid" => repaid,
+    )
+    .expect("frame");
+    let path = write(name, "");
+    let file = fs::File::create(&path).expect("parquet file");
+    ParquetWriter::new(file)
+        .finish(&mut frame)
+        .expect("write parquet");
+    (path, selected)
+}
+
+#[test]
+fn parquet_booleans_and_nullable_integers_are_read() {
+    let (file, selected) = typed_parquet("typed.parquet");
+    let leave_out = [
+        "--exclude",
+        "score",
+        "--exclude",
+        "approved",
+        "--exclude",
+        "repaid",
+    ];
+    let report = scan(&file, &[&["-p", "sex"][..], &leave_out].concat());
+    let member = feature(&report, "member");
+    assert_eq!(member["levels"], 2, "{member}");
+    assert!(member["auc"].as_f64().expect("auc") > 0.6, "{member}");
+    let amount = feature(&report, "amount");
+    assert_ne!(amount["kind"], "categorical", "{amount}");
+    // The boolean decision of `outputs` is read as selected / not selected.
+    let output = telltale(&[
+        "outputs",
+        &file,
+        "--score",
+        "score",
+        "--decision",
+        "approved",
+        "--outcome",
+        "repaid",
+        "-p",
+        "sex",
+        "--json",
+        "-",
+        "--quiet",
+    ]);
+    assert!(
+        output.status.code().is_some_and(|c| c <= 1),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let report: Value = serde_json::from_slice(&output.stdout).expect("JSON report");
+    let counted: u64 = report["results"][0]["groups"]
+        .as_array()
+        .expect("groups")
+        .iter()
+        .map(|g| g["selected"].as_u64().expect("selected count"))
+        .sum();
+    assert_eq!(counted as usize, selected);
+}

@@ -249,6 +249,15 @@ pub(crate) fn values_of<'a>(
             let (fields, tokens) = missing.apply(text.iter());
             Ok((Values::Text(fields), tokens))
         }
+        DataType::Boolean => {
+            // A Parquet boolean is a two-level category, read as its text.
+            let flags = column.bool().map_err(|e| bad(e.to_string()))?;
+            let text = flags
+                .iter()
+                .map(|v| v.map(|b| if b { "true" } else { "false" }));
+            let (fields, tokens) = missing.apply(text);
+            Ok((Values::Text(fields), tokens))
+        }
         dtype if dtype.is_primitive_numeric() => {
             let cast = column
                 .cast(&DataType::Float64)

@@ -242,14 +242,17 @@ fn numbers(columns: &Columns, column: &str, role: &str) -> Result<Vec<f64>, Inpu
     }
 }
 
-/// A 0/1 column as booleans; any other value is an input error.
+/// A 0/1 column as booleans (`true`/`false`, `yes`/`no`, `t`/`f`, `y`/`n`
+/// in any case are read too); any other value is an input error.
 fn binary(columns: &Columns, column: &str, role: &str) -> Result<Vec<bool>, InputError> {
     let path = columns.path;
     let not_binary = |value: String| {
         bad(
             path,
             column,
-            format!("the {role} must be 0 or 1 on every row, but a row holds `{value}`"),
+            format!(
+                "the {role} must be 0 or 1 (or true/false, yes/no) on every row, but a row holds `{value}`"
+            ),
         )
     };
     match columns.values(column)? {
@@ -263,12 +266,24 @@ fn binary(columns: &Columns, column: &str, role: &str) -> Result<Vec<bool>, Inpu
             .collect(),
         Values::Text(text) => text
             .iter()
-            .map(|field| match field.map(str::trim) {
-                Some("0") => Ok(false),
-                Some("1") => Ok(true),
-                other => Err(not_binary(other.unwrap_or("").to_string())),
+            .map(|field| {
+                let field = field.unwrap_or("").trim();
+                binary_token(field).ok_or_else(|| not_binary(field.to_string()))
             })
             .collect(),
+    }
+}
+
+/// The truth value a field spells, if it spells one.
+fn binary_token(field: &str) -> Option<bool> {
+    match field.to_ascii_lowercase().as_str() {
+        "1" | "true" | "t" | "yes" | "y" => Some(true),
+        "0" | "false" | "f" | "no" | "n" => Some(false),
+        number => match parse_number(number) {
+            Some(0.0) => Some(false),
+            Some(1.0) => Some(true),
+            _ => None,
+        },
     }
 }
 
@@ -323,4 +338,22 @@ fn levels(columns: &Columns, column: &str) -> Result<Levels, InputError> {
         labels: encoded.labels,
         codes: encoded.codes,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::binary_token;
+
+    #[test]
+    fn truth_values_are_read_in_their_usual_spellings() {
+        for yes in ["1", "1.0", "true", "TRUE", "Yes", "y", "T"] {
+            assert_eq!(binary_token(yes), Some(true), "{yes}");
+        }
+        for no in ["0", "0.0", "false", "False", "NO", "n", "f"] {
+            assert_eq!(binary_token(no), Some(false), "{no}");
+        }
+        for neither in ["2", "0.5", "maybe", "", "approved"] {
+            assert_eq!(binary_token(neither), None, "{neither}");
+        }
+    }
 }
