@@ -71,6 +71,7 @@ fn whole_set(auc: f64, se: f64) -> WholeSet {
         drop_one_screened: Vec::new(),
         drop_one_screened_auc: None,
         plan_check: None,
+        plan_withheld: None,
         redundancy_groups: Vec::new(),
         plan_rule: String::new(),
         frontier: Vec::new(),

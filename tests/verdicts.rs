@@ -267,6 +267,30 @@ fn tiny_minorities_raise_no_flag_and_pass_the_gate() {
 }
 
 #[test]
+fn a_tiny_minority_gets_drop_one_but_no_removal_plan() {
+    // 5 minority rows in 2 000 (below the default --min-class 28): the
+    // attacker and drop-one are still measured, but no removal is advised,
+    // and the report says why.
+    let options = ScanOptions {
+        pairs: PairMode::None,
+        ..ScanOptions::default()
+    };
+    let report = noise_report(5, 91, &options);
+    let whole = report.results[0].whole_set.as_ref().expect("whole set ran");
+    assert!(whole.removal_plan.is_empty());
+    assert!(!whole.target_reached);
+    assert!(!whole.drop_one.is_empty());
+    let reason = whole.plan_withheld.as_deref().expect("a reason is given");
+    assert!(reason.contains("--min-class"), "{reason}");
+    use telltale::report::Renderer;
+    let page = telltale::report::markdown::MarkdownRenderer.render(&report);
+    assert!(
+        page.contains("No removal plan: its smallest class"),
+        "{page}"
+    );
+}
+
+#[test]
 fn a_boolean_and_a_32_bin_numeric_with_the_same_auc_get_the_same_verdict() {
     // Binary x with P(x=1 | b) = p₁, P(x=1 | a) = p₀ has AUC ½ + (p₁ − p₀)/2;
     // a normal x shifted by δ in class b has AUC Φ(δ/√2) (binormal model,

@@ -444,6 +444,10 @@ pub struct WholeSet {
     /// at full width when the plan ran on a screened set.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub plan_check: Option<AucInterval>,
+    /// Why no removal plan was made (the protected attribute's smallest class
+    /// is below `settings.min_class`); absent when the plan ran.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub plan_withheld: Option<String>,
     /// Groups of features that rebuild each other, with what removing them together and alone does.
     #[serde(default)]
     pub redundancy_groups: Vec<RedundancyGroup>,

@@ -212,6 +212,9 @@ pub fn removal_outcome(whole: &WholeSet, target_auc: f64) -> String {
     if !whole.ablation {
         return "Drop-one ablation and the removal plan were not run (--no-ablation).".to_string();
     }
+    if let Some(reason) = &whole.plan_withheld {
+        return format!("No removal plan: {reason}.");
+    }
     let sampled = whole.ablation_rows.map_or(String::new(), |rows| {
         format!(" (ablation on a stratified sample of {rows} rows)")
     });

@@ -192,6 +192,7 @@ fn whole_set() -> WholeSet {
         drop_one_screened: Vec::new(),
         drop_one_screened_auc: None,
         plan_check: None,
+        plan_withheld: None,
         redundancy_groups: Vec::new(),
         plan_rule: String::new(),
         frontier: Vec::new(),

@@ -85,6 +85,19 @@ pub fn withheld_reason(smallest_class: usize, min_class: u64) -> Option<String> 
     })
 }
 
+/// Why no removal plan is made for an attribute whose smallest class has
+/// fewer than `min_class` rows; `None` when one is made. Below that size the
+/// AUC after a removal cannot be told from noise, and a plan is advice to act.
+#[must_use]
+pub fn plan_withheld_reason(smallest_class: usize, min_class: u64) -> Option<String> {
+    ((smallest_class as u64) < min_class).then(|| {
+        format!(
+            "its smallest class has fewer than {min_class} rows (--min-class), too few for the \
+             AUC after a removal to be told apart from noise"
+        )
+    })
+}
+
 /// `0.63 (0.55–0.71)`, or `0.63 (interval not estimable)` for a missing or
 /// zero-width interval.
 #[must_use]
@@ -216,6 +229,7 @@ mod tests {
             drop_one_screened: Vec::new(),
             drop_one_screened_auc: None,
             plan_check: None,
+            plan_withheld: None,
             redundancy_groups: Vec::new(),
             plan_rule: String::new(),
             outcome: None,

@@ -191,6 +191,7 @@ pub fn scan_whole_set(
         drop_one_screened: ablation.screened,
         drop_one_screened_auc: ablation.screened_auc,
         plan_check: ablation.plan.check,
+        plan_withheld: ablation.plan_withheld,
         redundancy_groups: ablation.plan.groups,
         plan_rule: if options.ablation {
             super::plan::plan_rule(options, outcome.is_some())
@@ -207,6 +208,8 @@ struct Ablation {
     screened: Vec<String>,
     screened_auc: Option<AucInterval>,
     plan: super::plan::Plan,
+    /// Why no removal plan was made (the drop-one values still are).
+    plan_withheld: Option<String>,
     refits: usize,
     outcome_refits: usize,
     rows: Option<usize>,
@@ -447,24 +450,31 @@ fn ablation(
         .map(|&i| features[i].name.clone())
         .collect();
     let screened_auc = working.baseline.as_ref().map(|b| b.evaluation.interval());
-    let plan = removal_plan(
-        &PlanInputs {
-            inputs,
-            target,
-            options,
-            flagged,
-            utility,
-        },
-        full,
-        working,
-        refitted,
-        progress,
-    );
+    let smallest = target.attribute.counts.iter().copied().min().unwrap_or(0);
+    let plan_withheld = super::verdict::plan_withheld_reason(smallest, options.min_class);
+    let plan = if plan_withheld.is_some() {
+        super::plan::Plan::default()
+    } else {
+        removal_plan(
+            &PlanInputs {
+                inputs,
+                target,
+                options,
+                flagged,
+                utility,
+            },
+            full,
+            working,
+            refitted,
+            progress,
+        )
+    };
     Ablation {
         drop_one,
         screened,
         screened_auc,
         plan,
+        plan_withheld,
         refits: 0,
         outcome_refits: 0,
         rows: None,
