@@ -288,6 +288,7 @@ pub fn build_report(
         ));
     }
     for result in &results {
+        notes.extend(whole::weaker_attacker_note(result));
         if let Some(whole) = &result.whole_set {
             notes.extend(whole::ablation_notes(&result.protected, whole));
         }

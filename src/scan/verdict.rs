@@ -129,6 +129,33 @@ fn whole_set_clause(protected: &str, w: &WholeSet, t: &Thresholds, named: &str) 
     }
 }
 
+/// The headline's clause on the single features flagged `proxy`, or, when
+/// none is, `review`: so a flag in the table is never left out of the answer.
+fn flagged_alone(features: &[FeatureResult]) -> String {
+    let with = |flag: Flag| -> Vec<&str> {
+        features
+            .iter()
+            .filter(|f| f.flag == flag)
+            .map(|f| f.name.as_str())
+            .collect()
+    };
+    let proxies = with(Flag::Proxy);
+    if !proxies.is_empty() {
+        return match proxies.as_slice() {
+            [one] => format!("; `{one}` alone is a proxy"),
+            many => format!("; {} features are proxies on their own", many.len()),
+        };
+    }
+    match with(Flag::Review).as_slice() {
+        [] => String::new(),
+        [one] => format!("; `{one}` alone is flagged for review"),
+        many => format!(
+            "; {} features are flagged for review on their own",
+            many.len()
+        ),
+    }
+}
+
 /// The one-sentence answer to "does dropping the attribute hide it?",
 /// followed by the power statement when nothing is flagged, or by the
 /// reason when flags are withheld.
@@ -143,16 +170,7 @@ pub fn headline(
     if let Some(reason) = &result.flags_withheld {
         return format!("No flags for `{protected}`: {reason}.");
     }
-    let proxies: Vec<&str> = features
-        .iter()
-        .filter(|f| f.flag == Flag::Proxy)
-        .map(|f| f.name.as_str())
-        .collect();
-    let named = match proxies.as_slice() {
-        [] => String::new(),
-        [one] => format!("; `{one}` alone is a proxy"),
-        many => format!("; {} features are proxies on their own", many.len()),
-    };
+    let named = flagged_alone(features);
     let whole = result.whole_set.as_ref();
     let mut text = match whole {
         Some(w) => whole_set_clause(protected, w, thresholds, &named),
@@ -282,6 +300,26 @@ mod tests {
         );
         let proxy = headline(&result(whole_set(0.9, 0.88, 0.92)), &[], &[], &LINES);
         assert!(proxy.contains("does not hide it") && !proxy.contains("Nothing is flagged"));
+    }
+
+    #[test]
+    fn headline_names_a_review_feature_when_the_whole_set_is_unresolved() {
+        // The attacker on all features at 0.62 (0.59–0.65) is unresolved, while
+        // one feature alone clears the review line: the headline says both.
+        let r = result(whole_set(0.62, 0.59, 0.65));
+        let mut feature = crate::report::sample::sample_report().results[0].features[0].clone();
+        feature.name = "region".to_string();
+        feature.flag = Flag::Review;
+        let text = headline(&r, &[feature.clone()], &[], &LINES);
+        assert!(text.contains("not resolved"), "{text}");
+        assert!(
+            text.contains("`region` alone is flagged for review"),
+            "{text}"
+        );
+        assert!(!text.contains("Nothing is flagged"), "{text}");
+        feature.flag = Flag::Proxy;
+        let text = headline(&r, &[feature], &[], &LINES);
+        assert!(text.contains("`region` alone is a proxy"), "{text}");
     }
 
     #[test]

@@ -8,7 +8,7 @@ use super::utility::{Utility, within_tolerance};
 use super::{Progress, ScanOptions};
 use crate::data::sample::stratified_sample;
 use crate::data::{EncodedColumn, ProtectedAttribute};
-use crate::report::{AucInterval, DropOne, JointColumn, WholeSet};
+use crate::report::{AucInterval, DropOne, JointColumn, ProtectedResult, WholeSet};
 use crate::surrogate::{BoostedSurrogate, Scores, Surrogate};
 use rayon::prelude::*;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -481,6 +481,32 @@ fn ablation(
     }
 }
 
+/// A note when one feature or pair alone recovers the attribute better than
+/// the attacker on every feature (its interval wholly above the attacker's
+/// AUC): greedy boosted trees on few rows or many levels can miss what a
+/// surrogate on one or two features finds, and the set leaks at least that.
+pub fn weaker_attacker_note(result: &ProtectedResult) -> Option<String> {
+    let whole = result.whole_set.as_ref()?;
+    let singles = result
+        .features
+        .iter()
+        .filter_map(|f| Some((format!("`{}`", f.name), f.auc?, f.auc_low?, f.auc_high?)));
+    let pairs = result.pairs.iter().filter_map(|p| {
+        let [a, b] = &p.features;
+        Some((format!("`{a}` + `{b}`"), p.auc, p.auc_low?, p.auc_high?))
+    });
+    let (name, auc, low, high) = singles
+        .chain(pairs)
+        .filter(|(_, _, low, _)| *low > whole.auc)
+        .max_by(|a, b| a.2.total_cmp(&b.2))?;
+    Some(format!(
+        "the attacker on every feature recovers `{}` with AUC {:.3}, less than {name} alone \
+         ({auc:.3} [{low:.3}, {high:.3}]): the boosted trees missed part of what that surrogate \
+         finds, so read {auc:.3} as the least the feature set leaks",
+        result.protected, whole.auc
+    ))
+}
+
 /// Report notes on what drop-one means and which features rebuild each other.
 pub fn ablation_notes(protected: &str, whole: &WholeSet) -> Vec<String> {
     if !whole.ablation || whole.drop_one.is_empty() {
@@ -560,6 +586,25 @@ mod tests {
     use crate::data::FeatureKind;
     use crate::data::encode::{encode_levels, encode_numeric};
     use crate::rng::SplitMix64;
+
+    #[test]
+    fn a_feature_above_the_attacker_gets_a_note() {
+        let mut result = crate::report::sample::sample_report().results.remove(0);
+        result.pairs.clear();
+        result.features.truncate(1);
+        let whole = result.whole_set.as_mut().expect("sample has a whole set");
+        whole.auc = 0.62;
+        let feature = &mut result.features[0];
+        (feature.auc, feature.auc_low, feature.auc_high) = (Some(0.66), Some(0.63), Some(0.69));
+        let name = feature.name.clone();
+        let note = weaker_attacker_note(&result).expect("0.63 > 0.62: a note");
+        assert!(
+            note.contains(&format!("less than `{name}` alone")),
+            "{note}"
+        );
+        result.features[0].auc_low = Some(0.61);
+        assert_eq!(weaker_attacker_note(&result), None);
+    }
 
     /// `rows` rows, a third of class 1 at random, and three pure-noise
     /// columns: a numeric in 32 bins, a 6-level and a 40-level categorical.
