@@ -869,6 +869,23 @@ fn demo_validates_its_flags_as_scan_does() {
         ]);
         assert_input_error(&out, &[needle]);
     }
+    for (rows, noise, needle) in [
+        ("5", "0", "at least 100"),
+        ("100000000", "0", "cells"),
+        ("50000", "100000", "cells"),
+    ] {
+        let out = telltale(&[
+            "demo",
+            "--rows",
+            rows,
+            "--extra-noise",
+            noise,
+            "--quiet",
+            "--report",
+            &report,
+        ]);
+        assert_input_error(&out, &["--rows", needle]);
+    }
     assert!(
         !dir.join("out").exists(),
         "nothing written on a usage error"

@@ -18,6 +18,14 @@ const DEFAULT_DIR: &str = "telltale-demo";
 /// Smallest cell shown in the demo's reports (the scan's default).
 const MIN_CELL: u64 = 10;
 
+/// Columns of the demo data before `--extra-noise`: the protected attribute,
+/// the outcome and eleven features.
+const DEMO_COLUMNS: usize = 13;
+
+/// Most values (rows × columns) `demo` generates: about 2 GB while generated
+/// and scanned, beyond any benchmark here (1,000,000 × 25, 50,000 × 200).
+const MAX_DEMO_CELLS: usize = 100_000_000;
+
 #[derive(Debug, Args)]
 pub struct DemoArgs {
     /// Rows to generate.
@@ -60,6 +68,16 @@ pub struct DemoArgs {
 pub fn run(args: &DemoArgs) -> Result<Status> {
     if args.rows < 100 {
         bail!("--rows must be at least 100, got {}", args.rows);
+    }
+    let columns = DEMO_COLUMNS.saturating_add(args.extra_noise);
+    if args.rows.saturating_mul(columns) > MAX_DEMO_CELLS {
+        bail!(
+            "--rows {} with --extra-noise {} makes {} columns: more than {MAX_DEMO_CELLS} cells \
+             of demo data; choose fewer rows or noise columns",
+            args.rows,
+            args.extra_noise,
+            columns
+        );
     }
     let options = ScreenOptions {
         roles: demo_roles(),
