@@ -755,17 +755,15 @@ fn add_source_counts_keys_and_tests_what_the_new_columns_add() {
     let (base, source) = split_demo(&dir);
     let (out, json) = scan_json(
         &base,
-        &[
-            &[
-                "-p",
-                "community",
-                "--add-source",
-                &source,
-                "--key",
-                "application_ref",
-            ][..],
-            &FAST,
-        ]
+        &[&[
+            "-p",
+            "community",
+            "--add-source",
+            &source,
+            "--key",
+            "application_ref",
+            "--quiet",
+        ][..]]
         .concat(),
     );
     assert!(
@@ -789,6 +787,11 @@ fn add_source_counts_keys_and_tests_what_the_new_columns_add() {
             > effect["auc_without"]["auc"].as_f64().unwrap()
     );
     assert!(effect["p_value"].as_f64().is_some());
+    // "AUC with" is the same fit as the report's whole set (joint columns included).
+    assert_eq!(
+        effect["auc_with"]["auc"],
+        json["results"][0]["whole_set"]["auc"]
+    );
     let features = json["results"][0]["features"].as_array().unwrap();
     assert!(
         features.iter().all(|f| f["name"] != "application_ref"),

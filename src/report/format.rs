@@ -20,6 +20,16 @@ pub fn fixed(value: Option<f64>, decimals: usize) -> String {
     value.map_or_else(|| NOT_COMPUTED.to_owned(), |v| format!("{v:.decimals$}"))
 }
 
+/// A p-value in a table, 4 decimals; below 0.0001 `<0.0001` rather than a
+/// misleading zero.
+#[must_use]
+pub fn p_value(p: Option<f64>) -> String {
+    match p {
+        Some(p) if p < 1e-4 => "<0.0001".to_string(),
+        other => fixed(other, 4),
+    }
+}
+
 /// `value` with an explicit sign, for differences such as pair gains.
 #[must_use]
 pub fn signed(value: f64, decimals: usize) -> String {

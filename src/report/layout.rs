@@ -397,7 +397,7 @@ fn drop_one_section(whole: &WholeSet) -> Option<Section<'static>> {
                     Cell::plain(&d.feature),
                     interval_cell(d.auc, d.auc_low, d.auc_high),
                     Cell::plain(format::signed(d.delta, 3)),
-                    Cell::plain(format::fixed(d.p_value, 4)),
+                    Cell::plain(format::p_value(d.p_value)),
                 ])
             })
             .collect(),
@@ -691,12 +691,12 @@ fn added_source_section(added: &AddedSource) -> Section<'static> {
                     interval(&e.auc_without),
                     interval(&e.auc_with),
                     Cell::plain(format::signed(e.difference, 3)),
-                    Cell::plain(format::fixed(e.p_value, 4)),
+                    Cell::plain(format::p_value(e.p_value)),
                 ])
             })
             .collect(),
     };
-    Section::new("Added source", vec![facts, Block::Table(effects)]).full_only()
+    Section::new("Added source", vec![facts, Block::Table(effects)])
 }
 
 #[cfg(test)]

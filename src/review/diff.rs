@@ -703,14 +703,6 @@ fn signed_or_missing(value: Option<f64>) -> String {
     value.map_or_else(|| format::NOT_COMPUTED.to_owned(), |v| format::signed(v, 3))
 }
 
-/// p-values below 0.0001 print as `<0.0001` rather than a misleading zero.
-fn p_text(p: Option<f64>) -> String {
-    match p {
-        Some(p) if p < 1e-4 => "<0.0001".to_string(),
-        other => format::fixed(other, 4),
-    }
-}
-
 fn auc_change_summary(change: &AucChange) -> String {
     format!(
         "{} → {}, change {}, z = {}, p = {}",
@@ -718,7 +710,7 @@ fn auc_change_summary(change: &AucChange) -> String {
         format::fixed(change.new_auc, 3),
         signed_or_missing(change.change),
         format::fixed(change.z, 2),
-        p_text(change.p_value)
+        format::p_value(change.p_value)
     )
 }
 
@@ -924,7 +916,7 @@ fn change_table<'c>(
                     Cell::plain(format::fixed(c.new_auc, 3)),
                     Cell::plain(signed_or_missing(c.change)),
                     Cell::plain(format::fixed(c.z, 2)),
-                    Cell::plain(p_text(c.p_value)),
+                    Cell::plain(format::p_value(c.p_value)),
                     Cell::plain(yes_no(c.significant)),
                 ],
                 detail,

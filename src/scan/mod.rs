@@ -367,7 +367,9 @@ pub fn build_report(
 }
 
 /// For each protected attribute, the whole-set AUC with and without the named
-/// (newly added) features.
+/// (newly added) features. The attacker gets the scan's joint columns, so the
+/// AUC with them is the whole-set AUC the report gives; without them, the
+/// joint columns of the new features are left out with their members.
 #[must_use]
 pub fn added_source_effects(
     table: &EncodedTable,
@@ -386,8 +388,8 @@ pub fn added_source_effects(
         .iter()
         .filter_map(|attribute| {
             let target = Target::new(attribute, options.folds, options.seed);
-            let inputs =
-                whole::AttackInputs::new(&table.features, joints::FoldJoints::none(options.folds));
+            let joints = joints::nested_joints(&table.features, &target, options, &Silent);
+            let inputs = whole::AttackInputs::new(&table.features, joints);
             whole::added_features_effect(&inputs, &indices, &target)
         })
         .collect()
