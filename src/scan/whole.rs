@@ -8,7 +8,7 @@ use super::utility::{Utility, within_tolerance};
 use super::{Progress, ScanOptions};
 use crate::data::sample::stratified_sample;
 use crate::data::{EncodedColumn, ProtectedAttribute};
-use crate::report::{AucInterval, DropOne, JointColumn, ProtectedResult, WholeSet};
+use crate::report::{AucInterval, DropOne, Flag, JointColumn, ProtectedResult, WholeSet};
 use crate::surrogate::{BoostedSurrogate, Scores, Surrogate};
 use rayon::prelude::*;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -481,20 +481,27 @@ fn ablation(
     }
 }
 
-/// A note when one feature or pair alone recovers the attribute better than
-/// the attacker on every feature (its interval wholly above the attacker's
-/// AUC): greedy boosted trees on few rows or many levels can miss what a
+/// A note when one flagged feature or pair alone recovers the attribute
+/// better than the attacker on every feature (its interval wholly above the
+/// attacker's AUC; only flagged ones, so that among thousands of noise pairs
+/// one whose interval misses by chance is never named): greedy boosted trees on few rows or many levels can miss what a
 /// surrogate on one or two features finds, and the set leaks at least that.
 pub fn weaker_attacker_note(result: &ProtectedResult) -> Option<String> {
     let whole = result.whole_set.as_ref()?;
+    let flagged = |flag: &Flag| matches!(flag, Flag::Proxy | Flag::Review);
     let singles = result
         .features
         .iter()
+        .filter(|f| flagged(&f.flag))
         .filter_map(|f| Some((format!("`{}`", f.name), f.auc?, f.auc_low?, f.auc_high?)));
-    let pairs = result.pairs.iter().filter_map(|p| {
-        let [a, b] = &p.features;
-        Some((format!("`{a}` + `{b}`"), p.auc, p.auc_low?, p.auc_high?))
-    });
+    let pairs = result
+        .pairs
+        .iter()
+        .filter(|p| flagged(&p.flag))
+        .filter_map(|p| {
+            let [a, b] = &p.features;
+            Some((format!("`{a}` + `{b}`"), p.auc, p.auc_low?, p.auc_high?))
+        });
     let (name, auc, low, high) = singles
         .chain(pairs)
         .filter(|(_, _, low, _)| *low > whole.auc)
@@ -596,12 +603,17 @@ mod tests {
         whole.auc = 0.62;
         let feature = &mut result.features[0];
         (feature.auc, feature.auc_low, feature.auc_high) = (Some(0.66), Some(0.63), Some(0.69));
+        feature.flag = Flag::Review;
         let name = feature.name.clone();
         let note = weaker_attacker_note(&result).expect("0.63 > 0.62: a note");
         assert!(
             note.contains(&format!("less than `{name}` alone")),
             "{note}"
         );
+        // Not flagged (e.g. flags withheld): no note.
+        result.features[0].flag = Flag::Unresolved;
+        assert_eq!(weaker_attacker_note(&result), None);
+        result.features[0].flag = Flag::Review;
         result.features[0].auc_low = Some(0.61);
         assert_eq!(weaker_attacker_note(&result), None);
     }
