@@ -1257,6 +1257,55 @@ fn outputs_policy_thresholds_decide_the_exit_status_and_the_report_agrees() {
 }
 
 #[test]
+fn a_ratio_below_four_fifths_on_small_numbers_fails_only_when_significant() {
+    // Groups a (488 rows, 235 selected) and b (12 rows, 8 selected): ratio
+    // 0.482/0.667 = 0.72, below four-fifths, but Fisher's exact two-sided
+    // p = 0.2498 (scipy.stats.fisher_exact([[235, 253], [8, 4]]), scipy
+    // 1.17.1; the test only needs p > 0.05): not
+    // significant at 0.05, so the default gate passes and says why
+    // (29 CFR 1607.4(D), small numbers); --impact-alpha 1 gates on the ratio
+    // alone, as does a policy's impact_alpha = 1.
+    let dir = scratch("outputs-small-numbers");
+    let mut text = String::from("group,score,decision,outcome\n");
+    for i in 0..500 {
+        let (group, selected) = if i < 488 {
+            ("a", i < 235)
+        } else {
+            ("b", i < 488 + 8)
+        };
+        let score = if selected { 0.8 } else { 0.2 };
+        let outcome = i % 2;
+        text.push_str(&format!(
+            "{group},{score},{},{outcome}\n",
+            u8::from(selected)
+        ));
+    }
+    let path = write(&dir, "scored.csv", text.as_bytes());
+    let (output, json) = run_outputs_json(&path, &["--decision", "decision"]);
+    assert_eq!(output.status.code(), Some(0), "{}", stderr(&output));
+    let impact = &json["results"][0]["adverse_impact_ratio"];
+    assert_eq!(impact["four_fifths"]["below"], true);
+    let p = impact["fisher_exact_p"].as_f64().unwrap();
+    assert!(p > 0.05, "p = {p}");
+    assert_eq!(json["settings"]["thresholds"]["impact_alpha"], 0.05);
+    let (output, json) =
+        run_outputs_json(&path, &["--decision", "decision", "--impact-alpha", "1"]);
+    assert_eq!(output.status.code(), Some(1));
+    assert!(
+        json["failing"][0]
+            .as_str()
+            .unwrap()
+            .contains("adverse impact ratio")
+    );
+    let ratio_alone = write(&dir, "ratio-alone.toml", b"[outputs]\nimpact_alpha = 1\n");
+    let (output, _) =
+        run_outputs_json(&path, &["--decision", "decision", "--policy", &ratio_alone]);
+    assert_eq!(output.status.code(), Some(1));
+    let (output, _) = run_outputs_json(&path, &["--decision", "decision", "--impact-alpha", "0"]);
+    assert_input_error(&output, &["--impact-alpha"]);
+}
+
+#[test]
 fn demo_scored_file_shows_the_planted_branch_penalty() {
     // The demo's model subtracts 0.8 from the log-odds of repayment on the 12 branches that
     // 90% of Valic and 8% of Osmeric applicants use (src/data/demo.rs); repayment itself

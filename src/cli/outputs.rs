@@ -45,13 +45,16 @@ pub struct OutputsArgs {
     /// Fail (exit 1) when the score's AUC lower bound for an attribute reaches this.
     #[arg(long, default_value_t = 0.70)]
     pub proxy_auc: f64,
-    /// Fail (exit 1) when the adverse impact ratio is below this (4/5: the four-fifths rule).
+    /// Fail (exit 1) when the adverse impact ratio is below this (4/5: the four-fifths rule) and the difference is significant at --impact-alpha.
     #[arg(long, default_value_t = 0.8)]
     pub impact_ratio: f64,
+    /// Significance (Fisher's exact p) a ratio below --impact-ratio needs to fail; 1 gates on the ratio alone.
+    #[arg(long, value_name = "ALPHA", default_value_t = 0.05)]
+    pub impact_alpha: f64,
     /// Fail (exit 1) when a TPR or FPR gap's lower bound reaches this.
     #[arg(long, value_name = "GAP")]
     pub odds_gap: Option<f64>,
-    /// Review policy (TOML): its `[outputs]` thresholds replace the three above.
+    /// Review policy (TOML): its `[outputs]` thresholds replace the four above.
     #[arg(long, value_name = "FILE")]
     pub policy: Option<PathBuf>,
     /// Write report.json, report.md and report.html into this folder.
@@ -92,6 +95,12 @@ impl OutputsArgs {
                 self.impact_ratio
             );
         }
+        if !(self.impact_alpha > 0.0 && self.impact_alpha <= 1.0) {
+            bail!(
+                "--impact-alpha must be above 0 and at most 1, got {}",
+                self.impact_alpha
+            );
+        }
         if let Some(gap) = self.odds_gap.filter(|g| !(0.0..=1.0).contains(g)) {
             bail!("--odds-gap must be between 0 and 1, got {gap}");
         }
@@ -101,6 +110,7 @@ impl OutputsArgs {
         let flags = OutputsThresholds {
             proxy_auc_low: self.proxy_auc,
             impact_ratio: self.impact_ratio,
+            impact_alpha: self.impact_alpha,
             odds_gap_low: self.odds_gap,
         };
         let policy = self.policy.as_deref().map(Policy::load).transpose()?;

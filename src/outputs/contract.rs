@@ -77,10 +77,22 @@ pub struct OutputsSettings {
 pub struct OutputsThresholds {
     /// Exit 1 when the score AUC's lower bound reaches this.
     pub proxy_auc_low: f64,
-    /// Exit 1 when the adverse impact ratio is below this (4/5 by default, decided exactly).
+    /// Exit 1 when the adverse impact ratio is below this (4/5 by default, decided exactly)
+    /// and its Fisher's exact p-value is at most `impact_alpha`.
     pub impact_ratio: f64,
+    /// Significance the ratio's difference must reach for the gate: a ratio below
+    /// the line on small numbers that is not significant does not fail it
+    /// (29 CFR 1607.4(D)); 1 gates on the ratio alone.
+    #[serde(default = "default_impact_alpha")]
+    pub impact_alpha: f64,
     /// Exit 1 when an equalized-odds gap's lower bound reaches this (off when `null`).
     pub odds_gap_low: Option<f64>,
+}
+
+/// Default `impact_alpha`: the conventional 5 % level.
+#[must_use]
+pub fn default_impact_alpha() -> f64 {
+    0.05
 }
 
 /// An AUC with its 95 % interval.

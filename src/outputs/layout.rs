@@ -4,7 +4,7 @@
 
 use super::contract::{
     CalibrationBand, Carrier, DistributionBand, GroupRates, ImpactRatio, OutputsReport,
-    OutputsResult, Rate, RateGap,
+    OutputsResult, OutputsSettings, Rate, RateGap,
 };
 use crate::report::format::{NOT_COMPUTED, auc_interval, percent, signed, suppressed};
 use crate::report::layout::{CAUTION_LABEL, names_or_none};
@@ -34,7 +34,7 @@ fn outputs_page(report: &OutputsReport) -> Page<'static> {
         report
             .results
             .iter()
-            .map(|r| attribute_section(r, report.settings.min_cell)),
+            .map(|r| attribute_section(r, &report.settings)),
     );
     if !report.notes.is_empty() {
         sections.push(Section::new(
@@ -125,17 +125,24 @@ fn thresholds_text(t: &super::OutputsThresholds) -> String {
     let odds = t
         .odds_gap_low
         .map_or_else(|| "off".to_owned(), |g| format!("lower bound ≥ {g}"));
+    let significance = if t.impact_alpha >= 1.0 {
+        String::new()
+    } else {
+        format!(" with Fisher's exact p ≤ {}", t.impact_alpha)
+    };
     format!(
-        "score AUC: lower bound ≥ {:.2}; adverse impact ratio: below {}; equalized-odds gap: {odds}",
+        "score AUC: lower bound ≥ {:.2}; adverse impact ratio: below {}{significance}; \
+         equalized-odds gap: {odds}",
         t.proxy_auc_low, t.impact_ratio
     )
 }
 
-fn attribute_section(result: &OutputsResult, min_cell: u64) -> Section<'static> {
+fn attribute_section(result: &OutputsResult, settings: &OutputsSettings) -> Section<'static> {
+    let min_cell = settings.min_cell;
     let mut blocks = vec![
         Block::paragraph(Role::Headline, &result.headline),
         Block::Section(proxy_section(result, min_cell)),
-        Block::Section(rates_section(result, min_cell)),
+        Block::Section(rates_section(result, settings)),
     ];
     blocks.extend(calibration_section(result, min_cell).map(Block::Section));
     if !result.thin_segments.is_empty() {
@@ -335,7 +342,8 @@ fn band_table<'a, G: 'a>(
     }
 }
 
-fn rates_section(result: &OutputsResult, min_cell: u64) -> Section<'static> {
+fn rates_section(result: &OutputsResult, settings: &OutputsSettings) -> Section<'static> {
+    let min_cell = settings.min_cell;
     let has_outcome = result.equalized_odds.is_some();
     let mut blocks = vec![rates_chart(result, has_outcome)];
     blocks.push(Block::Table(groups_table(
@@ -360,7 +368,10 @@ fn rates_section(result: &OutputsResult, min_cell: u64) -> Section<'static> {
     }
     if let Some(impact) = &result.adverse_impact_ratio {
         let compared = result.groups.iter().filter(|g| g.count.is_some()).count();
-        blocks.push(Block::paragraph(Role::Body, impact_text(impact, compared)));
+        blocks.push(Block::paragraph(
+            Role::Body,
+            impact_text(impact, compared, settings.thresholds.impact_alpha),
+        ));
         blocks.push(Block::paragraph(
             Role::Meta,
             format!(
@@ -512,7 +523,7 @@ fn groups_table(groups: &[GroupRates], has_outcome: bool, min_cell: u64) -> Tabl
 }
 
 /// `= 0.012`, `= 3.7e-25`, or `< 1e-300` where the double underflows.
-fn p_value(p: f64) -> String {
+pub(super) fn p_value(p: f64) -> String {
     if p < 1e-300 {
         "< 1e-300".to_owned()
     } else if p < 1e-3 {
@@ -523,8 +534,10 @@ fn p_value(p: f64) -> String {
 }
 
 /// The ratio sentence; `compared` groups with rows shown (more than two:
-/// the p-value is adjusted for picking the extreme pair).
-fn impact_text(impact: &ImpactRatio, compared: usize) -> String {
+/// the p-value is adjusted for picking the extreme pair). A ratio below
+/// four-fifths whose difference does not reach `alpha` is said not to fail
+/// the gate, with the rule's own small-numbers clause.
+fn impact_text(impact: &ImpactRatio, compared: usize, alpha: f64) -> String {
     let ratio = match (impact.ratio, impact.ratio_low, impact.ratio_high) {
         (Some(r), Some(l), Some(h)) => format!("{r:.3} [{l:.3}, {h:.3}]"),
         (Some(r), _, _) => format!("{r:.3} (interval not estimable: a rate is 0)"),
@@ -543,9 +556,19 @@ fn impact_text(impact: &ImpactRatio, compared: usize) -> String {
     } else {
         String::new()
     };
+    let small_numbers = if impact.four_fifths.below && !super::impact_significant(impact, alpha) {
+        format!(
+            " The difference is not significant at {alpha}: differences on small numbers that \
+             are not statistically significant may not constitute adverse impact (29 CFR \
+             1607.4(D)), so the gate does not fail on it (--impact-alpha 1 gates on the ratio \
+             alone)."
+        )
+    } else {
+        String::new()
+    };
     format!(
         "Adverse impact ratio (selection rate of {} over that of {}): {ratio}, {verdict} \
-         four-fifths. Fisher's exact test of the two rates{adjusted}: p {}.",
+         four-fifths. Fisher's exact test of the two rates{adjusted}: p {}.{small_numbers}",
         impact.lowest,
         impact.highest,
         p_value(impact.fisher_exact_p)

@@ -48,6 +48,7 @@ impl Default for OutputsOptions {
             thresholds: OutputsThresholds {
                 proxy_auc_low: 0.70,
                 impact_ratio: 0.8,
+                impact_alpha: contract::default_impact_alpha(),
                 odds_gap_low: None,
             },
             policy: None,
@@ -331,14 +332,17 @@ fn headline(result: &OutputsResult) -> String {
             lowest,
             highest,
             four_fifths,
+            fisher_exact_p,
             ..
         }) => format!(
-            "; selection rate of {lowest} over {highest}: {ratio:.3} ({} four-fifths)",
+            "; selection rate of {lowest} over {highest}: {ratio:.3} ({} four-fifths; Fisher's \
+             exact p {})",
             if four_fifths.below {
                 "below"
             } else {
                 "not below"
-            }
+            },
+            layout::p_value(*fisher_exact_p)
         ),
         _ => String::new(),
     };
@@ -378,14 +382,16 @@ pub fn gate_failures(report: &OutputsReport) -> Vec<String> {
         }
         if let Some(impact) = &result.adverse_impact_ratio
             && below_impact_threshold(impact, thresholds.impact_ratio)
+            && impact_significant(impact, thresholds.impact_alpha)
         {
             failures.push(format!(
-                "`{}`: adverse impact ratio {} is below {}",
+                "`{}`: adverse impact ratio {} is below {} (Fisher's exact p {})",
                 result.protected,
                 impact
                     .ratio
                     .map_or("n/a".to_string(), |r| format!("{r:.3}")),
-                thresholds.impact_ratio
+                thresholds.impact_ratio,
+                layout::p_value(impact.fisher_exact_p)
             ));
         }
         let gaps = result
@@ -404,6 +410,13 @@ pub fn gate_failures(report: &OutputsReport) -> Vec<String> {
         }
     }
     failures
+}
+
+/// Whether the ratio's difference reaches `alpha` (Fisher's exact p, adjusted
+/// for picking the extreme pair); `alpha` 1 or more: always.
+#[must_use]
+pub fn impact_significant(impact: &ImpactRatio, alpha: f64) -> bool {
+    alpha >= 1.0 || impact.fisher_exact_p <= alpha
 }
 
 /// Four-fifths decided in exact arithmetic (as the report states it); any

@@ -70,6 +70,8 @@ pub struct OutputsPolicyThresholds {
     pub score_auc_low: Option<f64>,
     /// Fail when the adverse impact ratio is below this.
     pub impact_ratio_min: Option<f64>,
+    /// The significance a ratio below `impact_ratio_min` needs to fail.
+    pub impact_alpha: Option<f64>,
     /// Fail when an equalized-odds gap's lower bound reaches this.
     pub odds_gap_low: Option<f64>,
 }
@@ -80,6 +82,7 @@ impl OutputsPolicyThresholds {
     pub fn is_set(&self) -> bool {
         self.score_auc_low.is_some()
             || self.impact_ratio_min.is_some()
+            || self.impact_alpha.is_some()
             || self.odds_gap_low.is_some()
     }
 
@@ -89,6 +92,7 @@ impl OutputsPolicyThresholds {
         OutputsThresholds {
             proxy_auc_low: self.score_auc_low.unwrap_or(base.proxy_auc_low),
             impact_ratio: self.impact_ratio_min.unwrap_or(base.impact_ratio),
+            impact_alpha: self.impact_alpha.unwrap_or(base.impact_alpha),
             odds_gap_low: self.odds_gap_low.or(base.odds_gap_low),
         }
     }
@@ -153,6 +157,7 @@ struct RawPolicy {
 struct RawOutputsThresholds {
     score_auc_low: Option<Spanned<f64>>,
     impact_ratio_min: Option<Spanned<f64>>,
+    impact_alpha: Option<Spanned<f64>>,
     odds_gap_low: Option<Spanned<f64>>,
 }
 
@@ -366,6 +371,7 @@ impl Locator<'_> {
         Ok(OutputsPolicyThresholds {
             score_auc_low: self.unit_interval("score_auc_low", raw.score_auc_low)?,
             impact_ratio_min: self.unit_interval("impact_ratio_min", raw.impact_ratio_min)?,
+            impact_alpha: self.unit_interval("impact_alpha", raw.impact_alpha)?,
             odds_gap_low: self.unit_interval("odds_gap_low", raw.odds_gap_low)?,
         })
     }
@@ -503,6 +509,7 @@ mod tests {
         let base = OutputsThresholds {
             proxy_auc_low: 0.7,
             impact_ratio: 0.8,
+            impact_alpha: 0.05,
             odds_gap_low: None,
         };
         let applied = policy.outputs.applied_to(base);
