@@ -402,6 +402,7 @@ fn assert_only_placeholders(line: &str, min_cell: u64, what: &str) {
 /// rare in the data, and no output format shows its count or shares.
 #[test]
 fn rare_levels_are_suppressed_in_every_format() {
+    const POOLED: &str = "(1 level with fewer than 10 rows each, pooled)";
     let min_cell = 10;
     let data = rare_level_csv();
     let rare_rows = data.lines().filter(|l| l.contains(",islet,")).count();
@@ -423,7 +424,13 @@ fn rare_levels_are_suppressed_in_every_format() {
         .unwrap();
     assert_eq!(area["flag"], "proxy", "{area}");
     let levels = area["composition"].as_array().unwrap();
-    let islet = levels.iter().find(|l| l["label"] == "islet").unwrap();
+    // The rare level is never named: its rows pool into one suppressed row.
+    assert!(!json.to_string().contains("islet"));
+    let pooled = |label: &str| label.contains("level with fewer than 10 rows each");
+    let islet = levels
+        .iter()
+        .find(|l| pooled(l["label"].as_str().unwrap()))
+        .unwrap();
     assert_eq!(islet["count"], Value::Null, "{islet}");
     assert!(
         islet["shares"]
@@ -468,15 +475,21 @@ fn rare_levels_are_suppressed_in_every_format() {
         } else {
             text.lines().collect()
         };
-        let rare: Vec<&&str> = rows.iter().filter(|r| r.contains("islet")).collect();
-        assert!(!rare.is_empty(), "{what} lists no rare level");
+        assert!(!text.contains("islet"), "{what} names the rare level");
+        let rare: Vec<&&str> = rows.iter().filter(|r| pooled(r)).collect();
+        assert!(!rare.is_empty(), "{what} lists no pooled rare levels");
         for row in rare {
-            assert_only_placeholders(row, min_cell as u64, what);
+            assert_only_placeholders(&row.replace(POOLED, ""), min_cell as u64, what);
         }
     }
     let summary = stdout(&telltale(&scan));
-    for line in summary.lines().filter(|l| l.contains("islet")) {
-        assert_only_placeholders(line, min_cell as u64, "terminal summary");
+    assert!(!summary.contains("islet"));
+    for line in summary.lines().filter(|l| pooled(l)) {
+        assert_only_placeholders(
+            &line.replace(POOLED, ""),
+            min_cell as u64,
+            "terminal summary",
+        );
     }
 }
 

@@ -98,18 +98,7 @@ pub fn quantile_bin_codes(values: &[f64], q: usize) -> (Vec<u32>, u32, Vec<f64>,
 #[must_use]
 pub fn encode_numeric(name: &str, values: Vec<f64>, q: usize) -> EncodedColumn {
     let (codes, n_levels, edges, missing_code) = quantile_bin_codes(&values, q);
-    let mut labels: Vec<String> = if edges.len() < 2 {
-        edges.iter().map(|e| format!("[{e}]")).collect()
-    } else {
-        edges
-            .windows(2)
-            .enumerate()
-            .map(|(i, w)| {
-                let open = if i == 0 { '[' } else { '(' };
-                format!("{open}{}, {}]", w[0], w[1])
-            })
-            .collect()
-    };
+    let mut labels = bin_labels(&edges);
     if missing_code.is_some() {
         labels.push(MISSING_LABEL.to_string());
     }
@@ -124,6 +113,26 @@ pub fn encode_numeric(name: &str, values: Vec<f64>, q: usize) -> EncodedColumn {
         raw: Some(RawValues::new(values)),
         missing_count,
     }
+}
+
+/// Bin labels from the quantile edges. The outer bins are open-ended
+/// (`≤ b`, `> a`): their outer edges are the smallest and largest values,
+/// single rows' values that a report must not show.
+fn bin_labels(edges: &[f64]) -> Vec<String> {
+    let bins = edges.len().saturating_sub(1);
+    if bins == 0 {
+        return edges.iter().map(|e| format!("[{e}]")).collect();
+    }
+    edges
+        .windows(2)
+        .enumerate()
+        .map(|(i, w)| match (i, bins) {
+            (_, 1) => "all values".to_string(),
+            (0, _) => format!("≤ {}", w[1]),
+            (i, n) if i == n - 1 => format!("> {}", w[0]),
+            _ => format!("({}, {}]", w[0], w[1]),
+        })
+        .collect()
 }
 
 /// Encodes text levels (`None` = missing) as codes over code-point-sorted labels, missing last.
@@ -237,6 +246,22 @@ pub fn combine_codes(a: &[u32], b: &[u32], b_levels: u32) -> (Vec<u32>, u32) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn outer_bins_do_not_show_the_extreme_values() {
+        let values: Vec<f64> = (0..100).map(f64::from).collect();
+        let column = encode_numeric("x", values, 4);
+        assert!(column.labels[0].starts_with("≤ "), "{:?}", column.labels);
+        assert!(column.labels[3].starts_with("> "), "{:?}", column.labels);
+        assert!(
+            column
+                .labels
+                .iter()
+                .all(|l| !l.contains("99") && !l.contains("[0")),
+            "{:?}",
+            column.labels
+        );
+    }
 
     #[test]
     fn edges_of_one_to_ten_in_four_bins() {

@@ -204,8 +204,9 @@ pub fn compare(a: &Scores, b: &Scores, target: &Target<'_>) -> Option<AucCompari
 }
 
 /// ROC points of the scores for the report's charts (binary: positive class;
-/// multi-class: the positive class is the first class scored one-vs-rest).
-pub fn roc(scores: &Scores, target: &Target<'_>) -> Vec<[f64; 2]> {
+/// multi-class: the positive class is the first class scored one-vs-rest);
+/// each step covers at least `min_rows` rows (`--min-cell`).
+pub fn roc(scores: &Scores, target: &Target<'_>, min_rows: u64) -> Vec<[f64; 2]> {
     let class = target.attribute.positive as usize;
     let positive: Vec<bool> = if target.attribute.is_binary() {
         target.positive.clone()
@@ -216,5 +217,5 @@ pub fn roc(scores: &Scores, target: &Target<'_>) -> Vec<[f64; 2]> {
             .map(|&c| c as usize == class)
             .collect()
     };
-    auc::roc_curve(&scores.column(class), &positive, 101)
+    auc::roc_curve(&scores.column(class), &positive, 101, min_rows)
 }

@@ -44,8 +44,10 @@ pub fn explain(
     };
     let target = Target::new(protected, options.folds, options.seed);
     let singles = scan_singles(&table.features, &target, options, progress);
+    // Partners as in the pair scan: identifier-like columns take no part.
+    let paired = |j: usize| super::pairs::pairs_with(&table.features[j]);
     let pairs: Vec<(usize, usize)> = (0..table.features.len())
-        .filter(|&j| j != index)
+        .filter(|&j| j != index && paired(j) && paired(index))
         .map(|j| (index.min(j), index.max(j)))
         .collect();
     let mut partners = evaluate_pairs(&table.features, &pairs, &target, options, progress);
@@ -84,7 +86,7 @@ pub fn explain(
         &result,
         dominated,
         levels_with_shares,
-        levels.len(),
+        contingency.row_totals().iter().filter(|&&t| t > 0).count(),
         partners.iter().find(|p| p.gain_is_resolved()),
     );
     Ok(Explanation {

@@ -179,6 +179,6 @@ fn scan_feature(
         roc: None,
         outcome: None,
     };
-    let roc = verdict.map(|(_, scores)| roc(&scores, target));
+    let roc = verdict.map(|(_, scores)| roc(&scores, target, options.min_cell));
     (result, roc)
 }

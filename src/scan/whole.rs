@@ -159,7 +159,7 @@ pub fn scan_whole_set(
         hand_till: full.evaluation.hand_till,
         surrogate: BoostedSurrogate::default().name().to_string(),
         features_used: features.len(),
-        roc: Some(roc(&full.scores, target)),
+        roc: Some(roc(&full.scores, target, options.min_cell)),
         drop_one: ablation.drop_one,
         removal_plan: ablation.plan.steps,
         target_reached: ablation.plan.reached,

@@ -466,25 +466,40 @@ pub fn cross_validated_compare(
 /// Empirical ROC curve: (FPR, TPR) points from (0, 0) to (1, 1), one per
 /// distinct score threshold taken from the highest down (Fawcett 2006,
 /// Pattern Recogn. Lett. 27, Algorithm 2), thinned to at most `max_points`
-/// (at least 2) evenly spaced points that keep both ends. Empty when a class is empty.
+/// (at least 2) evenly spaced points that keep both ends. Every step between
+/// two points covers at least `min_rows` rows (thresholds are merged until it
+/// does), so that no step gives away a small group's class counts. Empty when
+/// a class is empty.
 #[must_use]
-pub fn roc_curve(scores: &[f64], positive: &[bool], max_points: usize) -> Vec<[f64; 2]> {
+pub fn roc_curve(
+    scores: &[f64],
+    positive: &[bool],
+    max_points: usize,
+    min_rows: u64,
+) -> Vec<[f64; 2]> {
     let Some(table) = ScoreTable::new(scores, positive) else {
         return Vec::new();
     };
     let Some((n_neg, n_pos)) = class_totals(&table.negatives, &table.positives) else {
         return Vec::new();
     };
+    let point = |fp: u64, tp: u64| [fp as f64 / n_neg as f64, tp as f64 / n_pos as f64];
     let mut points = vec![[0.0, 0.0]];
-    let (mut false_pos, mut true_pos) = (0u64, 0u64);
+    let (mut false_pos, mut true_pos, mut since_last) = (0u64, 0u64, 0u64);
     for (&neg, &pos) in table.negatives.iter().zip(&table.positives).rev() {
         false_pos += neg;
         true_pos += pos;
-        points.push([
-            false_pos as f64 / n_neg as f64,
-            true_pos as f64 / n_pos as f64,
-        ]);
+        since_last += neg + pos;
+        if since_last >= min_rows && false_pos + true_pos < n_neg + n_pos {
+            points.push(point(false_pos, true_pos));
+            since_last = 0;
+        }
     }
+    // The last step, up to (1, 1), must be as large as the others.
+    if since_last < min_rows && points.len() > 1 {
+        points.pop();
+    }
+    points.push([1.0, 1.0]);
     thin(points, max_points.max(2))
 }
 
@@ -597,10 +612,30 @@ mod tests {
     }
 
     #[test]
+    fn roc_steps_cover_at_least_the_minimum_rows() {
+        // A rare score shared by 3 rows (2 positive, 1 negative) among 200: at
+        // min_rows 10 no step may isolate it, and every step holds >= 10 rows.
+        let mut scores = vec![0.9; 3];
+        let mut positive = vec![true, true, false];
+        for i in 0..197 {
+            scores.push(f64::from(i % 40) / 100.0);
+            positive.push(i % 3 == 0);
+        }
+        let n_pos = positive.iter().filter(|&&p| p).count() as f64;
+        let n_neg = positive.len() as f64 - n_pos;
+        let curve = roc_curve(&scores, &positive, 1000, 10);
+        assert_eq!(curve.last(), Some(&[1.0, 1.0]));
+        for w in curve.windows(2) {
+            let rows = (w[1][0] - w[0][0]) * n_neg + (w[1][1] - w[0][1]) * n_pos;
+            assert!(rows > 9.5, "a step of {rows} rows: {w:?}");
+        }
+    }
+
+    #[test]
     fn roc_curve_runs_corner_to_corner_and_thins() {
         // Fawcett (2006): the empirical ROC is a staircase from (0,0) to (1,1); its
         // trapezoidal area equals the Mann–Whitney AUC (Hanley & McNeil 1982, §II).
-        let curve = roc_curve(&S1, &Y, 1000);
+        let curve = roc_curve(&S1, &Y, 1000, 0);
         assert_eq!(curve.first(), Some(&[0.0, 0.0]));
         assert_eq!(curve.last(), Some(&[1.0, 1.0]));
         let area: f64 = curve
@@ -608,7 +643,7 @@ mod tests {
             .map(|w| (w[1][0] - w[0][0]) * (w[1][1] + w[0][1]) / 2.0)
             .sum();
         assert!((area - 31.0 / 35.0).abs() < 1e-12);
-        let thinned = roc_curve(&S1, &Y, 4);
+        let thinned = roc_curve(&S1, &Y, 4, 0);
         assert_eq!(thinned.len(), 4);
         assert_eq!(thinned[3], [1.0, 1.0]);
     }
