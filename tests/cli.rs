@@ -1319,6 +1319,45 @@ fn a_ratio_below_four_fifths_on_small_numbers_fails_only_when_significant() {
 }
 
 #[test]
+fn a_suppressed_group_leaves_the_score_auc_unchanged() {
+    // Groups a and b (200 rows each, b scoring higher) and 6 rows of a group
+    // shown only as `<10`: the score AUC must be the one without those rows,
+    // as the impact ratio leaves them out, and the report notes it.
+    let dir = scratch("outputs-suppressed-group");
+    let rows = |with_tiny: bool| -> Vec<u8> {
+        let mut text = String::from("group,score,decision,outcome\n");
+        for i in 0..400 {
+            let group = if i % 2 == 0 { "a" } else { "b" };
+            let score = (i % 17) as f64 / 17.0 + if group == "b" { 0.3 } else { 0.0 };
+            text.push_str(&format!(
+                "{group},{score},{},{}\n",
+                u8::from(score > 0.6),
+                i % 3 % 2
+            ));
+        }
+        if with_tiny {
+            for i in 0..6 {
+                text.push_str(&format!("tiny,{},1,{}\n", 0.1 * f64::from(i), i % 2));
+            }
+        }
+        text.into_bytes()
+    };
+    let with = write(&dir, "with.csv", &rows(true));
+    let without = write(&dir, "without.csv", &rows(false));
+    let (_, with) = run_outputs_json(&with, &["--decision", "decision"]);
+    let (_, without) = run_outputs_json(&without, &["--decision", "decision"]);
+    let auc = |json: &Value| json["results"][0]["score_auc"].clone();
+    assert!(auc(&without)["auc"].as_f64().unwrap() > 0.6);
+    assert_eq!(auc(&with), auc(&without));
+    assert_eq!(
+        with["results"][0]["score_auc_by_outcome"],
+        without["results"][0]["score_auc_by_outcome"]
+    );
+    let notes = with["notes"].to_string();
+    assert!(notes.contains("leave out the 1 class"), "{notes}");
+}
+
+#[test]
 fn demo_scored_file_shows_the_planted_branch_penalty() {
     // The demo's model subtracts 0.8 from the log-odds of repayment on the 12 branches that
     // 90% of Valic and 8% of Osmeric applicants use (src/data/demo.rs); repayment itself

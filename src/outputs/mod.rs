@@ -96,6 +96,21 @@ pub fn build_report(
             identifiers.join(", ")
         ));
     }
+    for attribute in &data.table.protected {
+        let small = attribute
+            .counts
+            .iter()
+            .filter(|&&c| c > 0 && (c as u64) < options.min_cell)
+            .count();
+        if small > 0 {
+            notes.push(format!(
+                "`{}`: the score's AUCs and the carriers leave out the {small} class(es) with \
+                 fewer than {} rows, as the impact ratio does (a handful of rows would only \
+                 widen their intervals)",
+                attribute.name, options.min_cell
+            ));
+        }
+    }
     if data.outcome.is_none() {
         notes.push(
             "no --outcome: TPR, FPR, equalized odds and calibration need the observed outcome"
@@ -163,6 +178,73 @@ fn settings(
     }
 }
 
+/// The rows the score's AUC measures (score AUC, within outcome, carriers)
+/// are taken on: those of the classes the report shows (at least `min_cell`
+/// rows), classes renumbered in order, as the impact ratio leaves the others
+/// out. A handful of rows would otherwise widen the interval enough to pass
+/// the gate, or make the measure not estimable for everyone.
+struct ShownClasses<'a> {
+    score: Vec<f64>,
+    classes: Vec<u32>,
+    k: usize,
+    outcome: Option<Vec<bool>>,
+    features: std::borrow::Cow<'a, [crate::data::EncodedColumn]>,
+    /// The original class of each shown class.
+    original: Vec<usize>,
+}
+
+impl<'a> ShownClasses<'a> {
+    fn of(data: &'a ScoredData, classes: &[u32], counts: &[GroupCounts], min_cell: u64) -> Self {
+        let original: Vec<usize> = (0..counts.len())
+            .filter(|&c| counts[c].rows >= min_cell.max(1))
+            .collect();
+        let mut renumber = vec![u32::MAX; counts.len()];
+        for (new, &old) in original.iter().enumerate() {
+            renumber[old] = new as u32;
+        }
+        let rows: Vec<usize> = (0..classes.len())
+            .filter(|&r| renumber[classes[r] as usize] != u32::MAX)
+            .collect();
+        let pick = |values: &[f64]| rows.iter().map(|&r| values[r]).collect::<Vec<f64>>();
+        Self {
+            score: pick(&data.score),
+            classes: rows
+                .iter()
+                .map(|&r| renumber[classes[r] as usize])
+                .collect(),
+            k: original.len(),
+            outcome: data
+                .outcome
+                .as_ref()
+                .map(|y| rows.iter().map(|&r| y[r]).collect()),
+            features: if rows.len() == classes.len() {
+                std::borrow::Cow::Borrowed(&data.table.features)
+            } else {
+                data.table
+                    .features
+                    .iter()
+                    .map(|f| f.select_rows(&rows))
+                    .collect()
+            },
+            original,
+        }
+    }
+
+    /// The score's separation of the shown classes; per-class AUCs back on
+    /// the attribute's `k` classes (`None` for a class left out).
+    fn separation(&self, k: usize) -> proxy::Separation {
+        let shown = proxy::separation(&self.score, &self.classes, self.k);
+        let mut per_class = vec![None; k];
+        for (auc, &class) in shown.per_class.iter().zip(&self.original) {
+            per_class[class] = *auc;
+        }
+        proxy::Separation {
+            auc: shown.auc,
+            per_class,
+        }
+    }
+}
+
 /// Mean score per class (`None` for an empty class).
 fn class_means(score: &[f64], classes: &[u32], k: usize) -> Vec<Option<f64>> {
     let mut sums = vec![(0.0, 0u64); k];
@@ -184,7 +266,8 @@ fn evaluate(
     let (min_cell, level) = (options.min_cell, options.level);
     let outcome = data.outcome.as_deref();
     let counts = count_groups(classes, k, &data.selected, outcome);
-    let separation = proxy::separation(&data.score, classes, k);
+    let shown = ShownClasses::of(data, classes, &counts, min_cell);
+    let separation = shown.separation(k);
     let score_auc = separation.auc;
     let higher_scoring = attribute
         .is_binary()
@@ -216,8 +299,10 @@ fn evaluate(
         headline: String::new(),
         score_auc,
         higher_scoring,
-        score_auc_by_outcome: outcome
-            .map(|y| proxy::by_outcome(&data.score, classes, k, y))
+        score_auc_by_outcome: shown
+            .outcome
+            .as_ref()
+            .map(|y| proxy::by_outcome(&shown.score, &shown.classes, shown.k, y))
             .unwrap_or_default(),
         groups,
         adverse_impact_ratio: impact_ratio(labels, &counts, min_cell, level),
@@ -245,10 +330,10 @@ fn evaluate(
         ),
         thin_segments: thin(data, attribute, &counts, options),
         carriers: proxy::carriers(
-            &data.score,
-            classes,
-            k,
-            &data.table.features,
+            &shown.score,
+            &shown.classes,
+            shown.k,
+            &shown.features,
             score_auc.map(|a| a.auc),
         ),
     };
