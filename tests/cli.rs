@@ -220,6 +220,19 @@ fn report_folder_is_never_overwritten_without_force() {
         "{}",
         stderr(&forced)
     );
+    // A folder holding only one of the three files is refused before the
+    // scan: nothing printed, nothing written.
+    let partial = dir.join("partial");
+    fs::create_dir_all(&partial).unwrap();
+    fs::write(partial.join("report.md"), "notes").unwrap();
+    let partial = partial.display().to_string();
+    let refused = telltale(&[&args[..4], &["--report", &partial], &QUICK[..]].concat());
+    assert_input_error(&refused, &["report.md", "--force"]);
+    assert!(stdout(&refused).is_empty(), "{}", stdout(&refused));
+    let missing = dir.join("no-such-folder/x.json").display().to_string();
+    let refused = telltale(&[&args[..4], &["--json", &missing], &QUICK[..]].concat());
+    assert_input_error(&refused, &["x.json", "does not exist"]);
+    assert!(stdout(&refused).is_empty(), "{}", stdout(&refused));
 }
 
 /// The exit status and the report's policy outcome come from one gate: with a

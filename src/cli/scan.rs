@@ -204,17 +204,34 @@ fn floor_pass(table: &telltale::data::EncodedTable) -> f64 {
     start.elapsed().as_secs_f64()
 }
 
-/// Refuses up front to overwrite outputs, so no time is spent scanning first.
+/// Refuses up front to overwrite outputs or to write into a missing folder,
+/// so no time is spent scanning first and no report is printed for nothing.
 pub fn check_outputs(report: Option<&PathBuf>, json: Option<&PathBuf>, force: bool) -> Result<()> {
+    if let Some(path) = json.filter(|p| p.as_os_str() != "-") {
+        let folder = path.parent().filter(|f| !f.as_os_str().is_empty());
+        if let Some(folder) = folder.filter(|f| !f.is_dir()) {
+            bail!(
+                "{}: folder {} does not exist",
+                path.display(),
+                folder.display()
+            );
+        }
+    }
     if force {
         return Ok(());
     }
     if let Some(dir) = report {
-        let existing = dir.join(JsonRenderer.file_name());
-        if existing.exists() {
+        let existing: Vec<String> = folder_renderers()
+            .iter()
+            .map(|r| dir.join(r.file_name()))
+            .filter(|p| p.exists())
+            .map(|p| p.display().to_string())
+            .collect();
+        if !existing.is_empty() {
             bail!(
-                "{}: a report is already there; choose another folder or pass --force to replace it",
-                existing.display()
+                "{}: a report is already there ({}); choose another folder or pass --force to replace it",
+                dir.display(),
+                existing.join(", ")
             );
         }
     }
