@@ -31,6 +31,10 @@ const BINS: std::ops::RangeInclusive<usize> = 2..=1024;
 /// refitted attacker are too wide for the ranking to mean much.
 pub const MIN_ABLATION_ROWS: usize = 1_000;
 
+/// Smallest `--sample`: as `demo --rows`, enough rows for every fold to hold
+/// both classes of a typical attribute.
+pub const MIN_SAMPLE_ROWS: usize = 100;
+
 /// Largest outcome AUC loss a frontier set may be allowed: half the AUC
 /// scale, the distance from a perfect model to chance.
 const MAX_UTILITY_LOSS: f64 = 0.5;
@@ -78,6 +82,11 @@ impl ScreenOptions {
                 self.scan.max_utility_loss
             )));
         }
+        if let Some(rows) = self.encode.sample.filter(|&n| n < MIN_SAMPLE_ROWS) {
+            return Err(InputError::Usage(format!(
+                "--sample must be at least {MIN_SAMPLE_ROWS} rows, got {rows}"
+            )));
+        }
         if self.scan.ablation_rows < MIN_ABLATION_ROWS {
             return Err(InputError::Usage(format!(
                 "ablation rows must be at least {MIN_ABLATION_ROWS}, got {}",
@@ -87,6 +96,14 @@ impl ScreenOptions {
         if let Some(policy) = &self.policy {
             self.scan.thresholds = policy.thresholds.applied_to(self.scan.thresholds);
         }
+        let t = &self.scan.thresholds;
+        if t.review_auc_low > t.proxy_auc_low {
+            return Err(InputError::Usage(format!(
+                "the review line {} is above the proxy line {}: --review-auc must not exceed --proxy-auc",
+                t.review_auc_low, t.proxy_auc_low
+            )));
+        }
+        self.roles.check_distinct()?;
         self.encode.min_class_rows = self.encode.min_class_rows.max(self.scan.folds);
         self.encode.seed = self.scan.seed;
         Ok(self)

@@ -884,6 +884,37 @@ fn policy_acceptance_and_expiry_drive_the_exit_status() {
 
 /// `demo` shares `scan`'s validation: no flag value may panic.
 #[test]
+fn conflicting_roles_blank_names_and_crossed_lines_are_usage_errors() {
+    let dir = scratch("conflicts");
+    let mut text = String::from("group,area,size\n");
+    for i in 0..40 {
+        text.push_str(&format!("{},{},{}\n", ["a", "b"][i % 2], i % 3, i));
+    }
+    let file = write(&dir, "d.csv", text.as_bytes());
+    let scan =
+        |extra: &[&str]| telltale(&[&["scan", file.as_str(), "--quiet"][..], extra].concat());
+    assert_input_error(
+        &scan(&["-p", "group", "-p", "group"]),
+        &["`group`", "twice"],
+    );
+    assert_input_error(
+        &scan(&["-p", "group", "--outcome", "group"]),
+        &["`group`", "outcome"],
+    );
+    assert_input_error(
+        &scan(&["-p", "group", "--review-auc", "0.8", "--proxy-auc", "0.7"]),
+        &["--review-auc", "--proxy-auc"],
+    );
+    assert_input_error(
+        &scan(&["-p", "group", "--sample", "0"]),
+        &["--sample must be at least 100"],
+    );
+    let blank = write(&dir, "blank.csv", b"group,area,\na,1,2\nb,2,3\n");
+    let out = telltale(&["scan", &blank, "-p", "group", "--quiet"]);
+    assert_input_error(&out, &["blank.csv", "line 1", "column 3 has no name"]);
+}
+
+#[test]
 fn demo_validates_its_flags_as_scan_does() {
     let dir = scratch("demo-flags");
     let report = dir.join("out").display().to_string();
@@ -1329,6 +1360,17 @@ fn a_ratio_below_four_fifths_on_small_numbers_fails_only_when_significant() {
     assert_eq!(output.status.code(), Some(1));
     let (output, _) = run_outputs_json(&path, &["--decision", "decision", "--impact-alpha", "0"]);
     assert_input_error(&output, &["--impact-alpha"]);
+}
+
+#[test]
+fn a_negative_threshold_is_read_as_a_number() {
+    // Log-odds scores have negative thresholds; `--threshold -0.5` must reach
+    // the range check (scores here lie in [0, 0.8]) rather than fail as an
+    // unknown flag.
+    let dir = scratch("outputs-negative-threshold");
+    let path = write(&dir, "scored.csv", &scored_csv(|_, _| {}));
+    let (output, _) = run_outputs_json(&path, &["--threshold", "-0.5"]);
+    assert_input_error(&output, &["threshold -0.5 is outside the score range"]);
 }
 
 #[test]

@@ -538,7 +538,7 @@ fn load_report_names_the_problem() {
         Err(ReviewError::Unreadable { .. })
     ));
 
-    let cases: [(&str, String); 4] = [
+    let cases: [(&str, String); 5] = [
         (
             "broken.json",
             "{\n  \"schema_version\": 1,\n  oops\n}".to_string(),
@@ -551,6 +551,10 @@ fn load_report_names_the_problem() {
                 .replace("\"caution\"", "\"cautions\""),
         ),
         ("array.json", "[1, 2]".to_string()),
+        (
+            "outputs.json",
+            "{\"schema_version\": 1, \"report_kind\": \"outputs\"}".to_string(),
+        ),
     ];
     let errors: Vec<ReviewError> = cases
         .iter()
@@ -580,6 +584,11 @@ fn load_report_names_the_problem() {
         errors[3].to_string().contains("JSON object"),
         "{}",
         errors[3]
+    );
+    assert!(
+        errors[4].to_string().contains("`outputs` report"),
+        "{}",
+        errors[4]
     );
     assert!(errors.iter().all(|e| e.to_string().contains(".json:")));
 }

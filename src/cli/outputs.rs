@@ -30,8 +30,8 @@ pub struct OutputsArgs {
     /// The model's decision column: 1 = selected, 0 = not.
     #[arg(long, value_name = "COL")]
     pub decision: Option<String>,
-    /// Selected when the score is at least this.
-    #[arg(long, value_name = "T")]
+    /// Selected when the score is at least this (negative values allowed, e.g. log-odds scores).
+    #[arg(long, value_name = "T", allow_negative_numbers = true)]
     pub threshold: Option<f64>,
     /// Select this share of rows with the highest scores (0 < R < 1).
     #[arg(long, value_name = "R")]

@@ -337,7 +337,14 @@ fn split_header(text: &str, delimiter: u8) -> Vec<String> {
 
 fn check_unique(path: &Path, columns: &[String]) -> Result<(), InputError> {
     let mut seen = std::collections::HashSet::new();
-    for name in columns {
+    for (i, name) in columns.iter().enumerate() {
+        if name.trim().is_empty() {
+            return Err(InputError::Malformed {
+                path: path.to_path_buf(),
+                line: 1,
+                reason: format!("column {} has no name in the header", i + 1),
+            });
+        }
         if !seen.insert(name.as_str()) {
             return Err(InputError::DuplicateColumn {
                 path: path.to_path_buf(),

@@ -38,6 +38,26 @@ pub struct Roles {
     pub features_optional: bool,
 }
 
+impl Roles {
+    /// A protected attribute named twice, or also given as the outcome, is a
+    /// usage error (it would be scanned twice, or against itself).
+    pub fn check_distinct(&self) -> Result<(), InputError> {
+        for (i, name) in self.protected.iter().enumerate() {
+            if self.protected[..i].contains(name) {
+                return Err(InputError::Usage(format!(
+                    "protected attribute `{name}` is given twice"
+                )));
+            }
+            if self.outcome.as_ref() == Some(name) {
+                return Err(InputError::Usage(format!(
+                    "`{name}` is given both as a protected attribute and as the outcome"
+                )));
+            }
+        }
+        Ok(())
+    }
+}
+
 /// Encoding settings.
 #[derive(Debug, Clone)]
 pub struct EncodeOptions {
@@ -802,7 +822,7 @@ fn build_outcome(
         .find(|(_, c)| **c < options.min_class_rows)
     {
         return Err(bad(format!(
-            "outcome `{label}` has only {count} rows; each outcome needs at least {} (one per fold)",
+            "outcome `{label}` has only {count} row(s); each outcome needs at least {} (one per fold)",
             options.min_class_rows
         )));
     }
@@ -839,7 +859,7 @@ fn check_protected(
         .find(|(_, c)| **c < options.min_class_rows)
     {
         return Err(bad(format!(
-            "class `{label}` has only {count} rows; each class needs at least {} (one per fold)",
+            "class `{label}` has only {count} row(s); each class needs at least {} (one per fold)",
             options.min_class_rows
         )));
     }

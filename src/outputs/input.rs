@@ -65,6 +65,7 @@ pub struct ScoredData {
 /// Checks, reads and aligns every column of a scored file.
 pub fn read_scored(spec: &ScoredSpec) -> Result<ScoredData, InputError> {
     let path = spec.path.as_path();
+    spec.roles.check_distinct()?;
     let summary = load::inspect(path, spec.load)?;
     let mut roles = spec.roles.clone();
     roles.outcome = None;

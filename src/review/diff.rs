@@ -88,6 +88,16 @@ fn check_schema_version(path: &Path, value: &serde_json::Value) -> Result<(), Re
             reason: "a report is a JSON object".to_string(),
         });
     }
+    if let Some(kind) = value.get("report_kind").and_then(|k| k.as_str()) {
+        return Err(ReviewError::Invalid {
+            path: path.to_path_buf(),
+            line: 1,
+            column: 1,
+            reason: format!(
+                "this is an `{kind}` report; diff compares the report.json files of `scan`"
+            ),
+        });
+    }
     match value.get("schema_version") {
         Some(found) if found.as_u64() != Some(u64::from(SCHEMA_VERSION)) => {
             Err(ReviewError::UnsupportedSchema {
