@@ -187,6 +187,9 @@ pub(crate) fn hex(bytes: &[u8]) -> String {
 struct CsvChecker {
     delimiter: u8,
     in_quotes: bool,
+    /// The last byte closed a quoted field: only a delimiter, a line end or
+    /// a second quote (an escaped one) may follow.
+    after_quote: bool,
     record: Vec<u8>,
     fields: usize,
     line: usize,
@@ -200,6 +203,7 @@ impl CsvChecker {
         Self {
             delimiter,
             in_quotes: false,
+            after_quote: false,
             record: Vec::new(),
             fields: 1,
             line: 1,
@@ -211,6 +215,16 @@ impl CsvChecker {
 
     fn feed(&mut self, path: &Path, bytes: &[u8]) -> Result<(), InputError> {
         for &byte in bytes {
+            if self.after_quote && !matches!(byte, b'"' | b'\n' | b'\r') && byte != self.delimiter {
+                return Err(InputError::Malformed {
+                    path: path.to_path_buf(),
+                    line: self.line,
+                    reason: "text after a closing quote (a quote inside a quoted field must be \
+                             doubled: \"\")"
+                        .to_string(),
+                });
+            }
+            self.after_quote = byte == b'"' && self.in_quotes;
             match byte {
                 b'"' => self.in_quotes = !self.in_quotes,
                 b'\n' => {
@@ -366,5 +380,20 @@ mod tests {
             vec!["a", "b, c", "say \"hi\"", "é"]
         );
         assert_eq!(split_header("x;y", b';'), vec!["x", "y"]);
+    }
+
+    #[test]
+    fn text_after_a_closing_quote_names_its_line() {
+        let check = |text: &str| {
+            let mut checker = CsvChecker::new(b',');
+            checker.feed(Path::new("d.csv"), text.as_bytes())
+        };
+        // RFC 4180 fields: empty, escaped quotes, CRLF, a quoted line break.
+        assert!(check("a,b\n\"\",\"say \"\"hi\"\"\"\r\n\"x\ny\",2\n").is_ok());
+        let error = check("a,b\n1,2\n\"ok\"junk,3\n").unwrap_err();
+        assert!(
+            matches!(error, InputError::Malformed { line: 3, .. }),
+            "{error}"
+        );
     }
 }
