@@ -484,8 +484,9 @@ fn ablation(
 /// A note when one flagged feature or pair alone recovers the attribute
 /// better than the attacker on every feature (its interval wholly above the
 /// attacker's AUC; only flagged ones, so that among thousands of noise pairs
-/// one whose interval misses by chance is never named): greedy boosted trees on few rows or many levels can miss what a
-/// surrogate on one or two features finds, and the set leaks at least that.
+/// one whose interval misses by chance is never named): greedy boosted trees
+/// on few rows or many levels can miss what a surrogate on one or two
+/// features finds, and the set leaks at least that.
 pub fn weaker_attacker_note(result: &ProtectedResult) -> Option<String> {
     let whole = result.whole_set.as_ref()?;
     let flagged = |flag: &Flag| matches!(flag, Flag::Proxy | Flag::Review);
